@@ -1,0 +1,1 @@
+"""Flarebook: practice-autorotation training records for helicopter schools."""

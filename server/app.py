@@ -1,0 +1,76 @@
+"""The application factory."""
+from fastapi import FastAPI, Request
+from fastapi.exceptions import RequestValidationError
+from fastapi.responses import JSONResponse, RedirectResponse
+from fastapi.staticfiles import StaticFiles
+from starlette.middleware.gzip import GZipMiddleware
+
+from server.config import PROJECT_ROOT, Settings, get_settings
+from server.db import make_engine, make_session_factory
+from server.deps import SignInRequired
+from server.errors import FlarebookError
+from server.fleet import api as fleet_api
+from server.logbook import api as logbook_api
+from server.logbook import routes as logbook_routes
+from server.people import api as people_api
+from server.people import routes as people_routes
+from server.web import is_htmx, render
+
+
+def create_app(settings: Settings | None = None) -> FastAPI:
+    settings = settings or get_settings()
+    app = FastAPI(
+        title="Flarebook",
+        version="0.1.0",
+        summary="Practice-autorotation training records for helicopter schools.",
+        description=(
+            "Records and training aids only: the aircraft flight manual, approved procedures, local "
+            "rules and licensed instructors come first."
+        ),
+    )
+    app.state.settings = settings
+    app.state.engine = make_engine(settings.database_url)
+    app.state.sessions = make_session_factory(app.state.engine)
+
+    app.add_middleware(GZipMiddleware, minimum_size=500)
+    app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
+    for module in (people_api, fleet_api, logbook_api):
+        app.include_router(module.router, prefix="/api/v1")
+    for module in (people_routes, logbook_routes):
+        app.include_router(module.router)
+    _add_error_handlers(app)
+    return app
+
+
+def readable_errors(exc: RequestValidationError) -> list[dict]:
+    """Validation errors as field and sentence, without echoing the input back."""
+    out = []
+    for error in exc.errors():
+        location = [str(part) for part in error.get("loc", ()) if part not in ("body", "query", "path")]
+        message = str(error.get("msg", "is not valid")).removeprefix("Value error, ")
+        out.append({"field": ".".join(location) or None, "message": message})
+    return out
+
+
+def _add_error_handlers(app: FastAPI) -> None:
+    @app.exception_handler(FlarebookError)
+    async def _service_error(request: Request, exc: FlarebookError):
+        if request.url.path.startswith("/api/"):
+            return JSONResponse({"detail": exc.message}, status_code=exc.status_code)
+        return render(request, "error.html", {"message": exc.message, "status": exc.status_code},
+                      status_code=exc.status_code, fragment="_error.html")
+
+    @app.exception_handler(RequestValidationError)
+    async def _validation_error(request: Request, exc: RequestValidationError):
+        errors = readable_errors(exc)
+        summary = "; ".join(f"{e['field']}: {e['message']}" if e["field"] else e["message"] for e in errors)
+        if request.url.path.startswith("/api/"):
+            return JSONResponse({"detail": summary, "errors": errors}, status_code=422)
+        return render(request, "error.html", {"message": summary, "status": 422}, status_code=422,
+                      fragment="_error.html")
+
+    @app.exception_handler(SignInRequired)
+    async def _sign_in(request: Request, exc: SignInRequired):
+        if is_htmx(request):
+            return JSONResponse({"detail": "Sign in again."}, status_code=401, headers={"HX-Redirect": "/signin"})
+        return RedirectResponse("/signin", status_code=303)

@@ -1,0 +1,1 @@
+"""Currency: rules that keep pilots in date, and their evaluation."""

@@ -1,0 +1,44 @@
+"""Tables for currency rules and calendar feed links."""
+from datetime import datetime
+
+from sqlalchemy import JSON, Boolean, Float, ForeignKey, Integer, String
+from sqlalchemy.orm import Mapped, mapped_column
+
+from server.db import Base
+from server.types import UTCDateTime, utcnow
+
+
+class CurrencyRule(Base):
+    """What a pilot must fly, how often, to stay current. Empty lists mean "any"."""
+
+    __tablename__ = "currency_rules"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    name: Mapped[str] = mapped_column(String(120))
+    applies_to_roles: Mapped[list] = mapped_column(JSON, default=list)
+    applies_to_people: Mapped[list] = mapped_column(JSON, default=list)
+    maneuvers: Mapped[list] = mapped_column(JSON, default=list)
+    terminations: Mapped[list] = mapped_column(JSON, default=list)
+    type_ids: Mapped[list] = mapped_column(JSON, default=list)
+    with_instructor: Mapped[bool | None] = mapped_column(Boolean)
+    min_score: Mapped[float | None] = mapped_column(Float)
+    require_satisfactory: Mapped[bool] = mapped_column(Boolean, default=True)
+    window_days: Mapped[int | None] = mapped_column(Integer)
+    window_months: Mapped[int | None] = mapped_column(Integer)
+    min_count: Mapped[int] = mapped_column(Integer, default=1)
+    warn_days: Mapped[int] = mapped_column(Integer, default=14)
+    active: Mapped[bool] = mapped_column(Boolean, default=True)
+    created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
+
+
+class CalendarFeed(Base):
+    """A secret link to a due-date calendar; person_id None is the whole school's feed."""
+
+    __tablename__ = "calendar_feeds"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    owner_id: Mapped[int] = mapped_column(ForeignKey("people.id", ondelete="CASCADE"), index=True)
+    person_id: Mapped[int | None] = mapped_column(ForeignKey("people.id", ondelete="CASCADE"))
+    token_sha256: Mapped[str] = mapped_column(String(64), unique=True)
+    created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
+    revoked_at: Mapped[datetime | None] = mapped_column(UTCDateTime)

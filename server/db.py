@@ -1,0 +1,59 @@
+"""Database engine, declarative base and sessions."""
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
+
+from sqlalchemy import MetaData, create_engine, event
+from sqlalchemy.engine import Engine, make_url
+from sqlalchemy.orm import DeclarativeBase, Session, sessionmaker
+
+# Stable constraint names so that Alembic migrations (and SQLite batch mode) can refer to them.
+NAMING = {
+    "ix": "ix_%(column_0_label)s",
+    "uq": "uq_%(table_name)s_%(column_0_name)s",
+    "ck": "ck_%(table_name)s_%(constraint_name)s",
+    "fk": "fk_%(table_name)s_%(column_0_name)s_%(referred_table_name)s",
+    "pk": "pk_%(table_name)s",
+}
+
+
+class Base(DeclarativeBase):
+    metadata = MetaData(naming_convention=NAMING)
+
+
+def _sqlite_pragmas(dbapi_connection, _record) -> None:
+    # WAL for readers beside one writer; FULL so a signed record survives power loss.
+    cursor = dbapi_connection.cursor()
+    cursor.execute("PRAGMA journal_mode=WAL")
+    cursor.execute("PRAGMA synchronous=FULL")
+    cursor.execute("PRAGMA foreign_keys=ON")
+    cursor.execute("PRAGMA busy_timeout=10000")
+    cursor.close()
+
+
+def make_engine(url: str) -> Engine:
+    """Create an engine; for SQLite make the data folder and turn on the pragmas."""
+    parsed = make_url(url)
+    if parsed.get_backend_name() == "sqlite":
+        if parsed.database and parsed.database != ":memory:":
+            Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
+        engine = create_engine(url, connect_args={"check_same_thread": False, "timeout": 10})
+        event.listen(engine, "connect", _sqlite_pragmas)
+        return engine
+    return create_engine(url, pool_pre_ping=True, pool_size=10, max_overflow=20)
+
+
+def make_session_factory(engine: Engine) -> sessionmaker[Session]:
+    return sessionmaker(engine, expire_on_commit=False)
+
+
+@contextmanager
+def transaction(factory: sessionmaker[Session]) -> Iterator[Session]:
+    """One unit of work: commit on success, roll back on error."""
+    with factory() as session:
+        try:
+            yield session
+            session.commit()
+        except BaseException:
+            session.rollback()
+            raise

@@ -1,0 +1,1 @@
+"""Fleet: the school, helicopter types, aircraft and practice sites."""

@@ -1,0 +1,125 @@
+"""Helicopter types, aircraft and sites."""
+from sqlalchemy import select
+from sqlalchemy.orm import Session
+
+from server.errors import Conflict, Invalid, NotFound
+from server.fleet.models import Aircraft, HelicopterType, School, Site
+from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate
+from server.records import audit
+
+
+def school(session: Session) -> School:
+    """The school row, made on first use (a new database starts in UTC)."""
+    row = session.get(School, 1)
+    if row is None:
+        row = School(id=1, name="Flight school", timezone="UTC")
+        session.add(row)
+        session.flush()
+    return row
+
+
+def list_types(session: Session) -> list[HelicopterType]:
+    return list(session.scalars(select(HelicopterType).order_by(HelicopterType.designation)))
+
+
+def get_type(session: Session, type_id: int) -> HelicopterType:
+    row = session.get(HelicopterType, type_id)
+    if row is None:
+        raise NotFound("No such helicopter type.")
+    return row
+
+
+def type_fields(data: TypeCreate) -> dict:
+    fields = data.model_dump(exclude={"flare_band_ft"})
+    fields["flare_band_low_ft"], fields["flare_band_high_ft"] = data.flare_band_ft
+    fields["hv_avoid"] = [[list(p) for p in polygon] for polygon in data.hv_avoid]
+    return fields
+
+
+def create_type(session: Session, *, data: TypeCreate, actor_id: int) -> HelicopterType:
+    if session.scalar(select(HelicopterType.id).where(HelicopterType.designation == data.designation)):
+        raise Conflict(f"A helicopter type called {data.designation} exists already.")
+    row = HelicopterType(**type_fields(data))
+    session.add(row)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="create", entity="helicopter_type",
+                 entity_id=row.id, after=data.model_dump(mode="json"))
+    return row
+
+
+def update_type(session: Session, *, row: HelicopterType, data: TypeCreate, actor_id: int) -> HelicopterType:
+    clash = session.scalar(select(HelicopterType.id).where(HelicopterType.designation == data.designation,
+                                                           HelicopterType.id != row.id))
+    if clash:
+        raise Conflict(f"A helicopter type called {data.designation} exists already.")
+    before = type_read(row)
+    for key, value in type_fields(data).items():
+        setattr(row, key, value)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="edit", entity="helicopter_type", entity_id=row.id,
+                 before=before, after=type_read(row))
+    return row
+
+
+def type_read(row: HelicopterType) -> dict:
+    return {
+        "id": row.id, "designation": row.designation, "rotor_radius_ft": row.rotor_radius_ft,
+        "blade_count": row.blade_count, "rotor_inertia_slug_ft2": row.rotor_inertia_slug_ft2,
+        "normal_rotor_rpm": row.normal_rotor_rpm, "nr_power_off_min_pct": row.nr_power_off_min_pct,
+        "nr_power_off_max_pct": row.nr_power_off_max_pct, "autorotation_kias": row.autorotation_kias,
+        "reference_weight_lb": row.reference_weight_lb,
+        "flare_band_ft": [row.flare_band_low_ft, row.flare_band_high_ft],
+        "touchdown_speed_max_kt": row.touchdown_speed_max_kt, "hv_avoid": row.hv_avoid,
+    }
+
+
+def list_aircraft(session: Session) -> list[Aircraft]:
+    return list(session.scalars(select(Aircraft).order_by(Aircraft.registration)))
+
+
+def get_aircraft(session: Session, aircraft_id: int) -> Aircraft:
+    row = session.get(Aircraft, aircraft_id)
+    if row is None:
+        raise NotFound("No such aircraft.")
+    return row
+
+
+def create_aircraft(session: Session, *, data: AircraftCreate, actor_id: int) -> Aircraft:
+    registration = data.registration.strip().upper()
+    if session.get(HelicopterType, data.type_id) is None:
+        raise Invalid("type_id does not name a helicopter type.")
+    if session.scalar(select(Aircraft.id).where(Aircraft.registration == registration)):
+        raise Conflict(f"Aircraft {registration} exists already.")
+    row = Aircraft(registration=registration, type_id=data.type_id)
+    session.add(row)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="create", entity="aircraft", entity_id=row.id,
+                 after={"registration": registration, "type_id": data.type_id})
+    return row
+
+
+def aircraft_read(row: Aircraft) -> dict:
+    return {"id": row.id, "registration": row.registration, "type_id": row.type_id,
+            "type_designation": row.type.designation, "active": row.active}
+
+
+def list_sites(session: Session) -> list[Site]:
+    return list(session.scalars(select(Site).order_by(Site.name)))
+
+
+def get_site(session: Session, site_id: int) -> Site:
+    row = session.get(Site, site_id)
+    if row is None:
+        raise NotFound("No such site.")
+    return row
+
+
+def create_site(session: Session, *, data: SiteCreate, actor_id: int) -> Site:
+    if session.scalar(select(Site.id).where(Site.name == data.name)):
+        raise Conflict(f"A site called {data.name} exists already.")
+    row = Site(**data.model_dump())
+    session.add(row)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="create", entity="site", entity_id=row.id,
+                 after=data.model_dump())
+    return row

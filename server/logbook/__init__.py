@@ -1,0 +1,1 @@
+"""Logbook: sorties and the practice autorotations flown in them."""

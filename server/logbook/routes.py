@@ -1,0 +1,288 @@
+"""Pages and htmx fragments of the sortie sheet."""
+from datetime import datetime
+from zoneinfo import ZoneInfo
+
+from fastapi import APIRouter, Query, Request
+from fastapi.responses import HTMLResponse, RedirectResponse
+
+from server.deps import DbSession, PageUser
+from server.errors import Invalid
+from server.fleet import service as fleet
+from server.fleet.models import Site
+from server.forms import blank_to_none, validate
+from server.logbook import derive
+from server.logbook import service as logbook
+from server.logbook.models import Attempt, Sortie
+from server.logbook.schemas import AttemptFields, ConditionsRequest, SortieCreate
+from server.people import service as people
+from server.people.models import Person
+from server.records.models import MEANINGS
+from server.web import render
+
+router = APIRouter(include_in_schema=False)
+
+CONDITION_NAMES = ("oat_c", "altimeter", "altimeter_unit", "wind_dir_deg", "wind_kt", "gust_kt",
+                   "takeoff_weight_lb", "metar", "remarks")
+ATTEMPT_NAMES = tuple(AttemptFields.model_fields)
+
+
+def _timezone(db) -> ZoneInfo:
+    return ZoneInfo(fleet.school(db).timezone)
+
+
+def _sortie_values(form) -> dict:
+    """Form fields to SortieCreate fields; the altimeter's unit picks the field name."""
+    values = blank_to_none(form, ("pilot_id", "aircraft_id", "site_id", "flown_at") + CONDITION_NAMES)
+    altimeter, unit = values.pop("altimeter"), values.pop("altimeter_unit") or "hPa"
+    values["altimeter_inhg" if unit == "inHg" else "altimeter_hpa"] = altimeter
+    values["remarks"] = values["remarks"] or ""
+    return values
+
+
+def _form_choices(db, person: Person) -> dict:
+    pilots = [p for p in people.visible_people(db, viewer=person) if p.active]
+    return {
+        "pilots": [(p.id, p.name) for p in pilots],
+        "aircraft": [(a.id, f"{a.registration} · {a.type.designation}") for a in fleet.list_aircraft(db) if a.active],
+        "sites": [(s.id, f"{s.name} ({s.elevation_ft:,.0f} ft)") for s in fleet.list_sites(db)],
+        "timezone": fleet.school(db).timezone,
+    }
+
+
+@router.get("/sorties", name="sortie_list")
+def sortie_list(request: Request, db: DbSession, person: PageUser, offset: int = Query(default=0, ge=0)):
+    sorties = logbook.list_sorties(db, viewer=person, limit=50, offset=offset)
+    return render(request, "logbook/sortie_list.html", {
+        "person": person, "sorties": sorties, "limit": 50, "offset": offset,
+        "states": {s.id: logbook.display_state(db, s) for s in sorties},
+    })
+
+
+@router.get("/sorties/new", name="sortie_new")
+def sortie_new(request: Request, db: DbSession, person: PageUser):
+    now = datetime.now(_timezone(db)).strftime("%Y-%m-%dT%H:%M")
+    return render(request, "logbook/sortie_new.html", {
+        "person": person, "values": {"flown_at": now, "altimeter_unit": "hPa"}, "errors": {},
+        "readout": None, **_form_choices(db, person),
+    })
+
+
+@router.post("/sorties/new", name="sortie_create")
+async def sortie_create(request: Request, db: DbSession, person: PageUser):
+    form = await request.form()
+    values = _sortie_values(form)
+    raw = {**values}
+    if values["flown_at"]:
+        try:
+            values["flown_at"] = datetime.fromisoformat(values["flown_at"]).replace(tzinfo=_timezone(db))
+        except ValueError:
+            values["flown_at"] = "not a date"
+    data, errors, message = validate(SortieCreate, values)
+    if data is not None:
+        try:
+            sortie = logbook.create_sortie(db, actor=person, data=data)
+        except Invalid as error:
+            message = error.message
+        else:
+            return RedirectResponse(request.url_for("sortie_sheet", sortie_id=sortie.id), status_code=303)
+    errors = _rename_altimeter(errors)
+    shown = blank_to_none(form, ("pilot_id", "aircraft_id", "site_id", "flown_at") + CONDITION_NAMES)
+    return render(request, "logbook/sortie_new.html", {
+        "person": person, "values": shown, "errors": errors, "message": message or _summary(errors),
+        "readout": None, "raw": raw, **_form_choices(db, person),
+    }, status_code=422)
+
+
+def _rename_altimeter(errors: dict) -> dict:
+    for name in ("altimeter_hpa", "altimeter_inhg"):
+        if name in errors:
+            errors["altimeter"] = errors.pop(name)
+    return errors
+
+
+def _summary(errors: dict) -> str | None:
+    return "Some entries need a look: see the marked fields." if errors else None
+
+
+@router.post("/sorties/conditions", name="conditions_preview")
+async def conditions_preview(request: Request, db: DbSession, person: PageUser):
+    """Pressure and density altitude as the conditions are typed; a pasted METAR fills the fields."""
+    form = await request.form()
+    values = _sortie_values(form)
+    site_id = values.get("site_id")
+    elevation = None
+    if site_id and str(site_id).isdigit():
+        site = db.get(Site, int(site_id))
+        elevation = site.elevation_ft if site else None
+    request_values = {k: values.get(k) for k in ("oat_c", "altimeter_hpa", "altimeter_inhg", "wind_dir_deg",
+                                                  "wind_kt", "gust_kt", "metar")}
+    request_values["elevation_ft"] = elevation
+    data, errors, message = validate(ConditionsRequest, request_values)
+    readout = derive.conditions(data) if data is not None else None
+    context = {"readout": readout, "errors": _rename_altimeter(errors)}
+    if readout is None:
+        context["readout"] = {"message": message or "Check the marked conditions.", "filled_from_metar": []}
+    response = render(request, "logbook/_conditions_readout.html", context)
+    if readout is not None and readout.filled_from_metar and request.headers.get("HX-Trigger-Name") == "metar":
+        filled = {k: getattr(readout, k) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}
+        filled["altimeter"] = round(readout.altimeter_hpa, 1) if readout.altimeter_hpa else values.get("altimeter_hpa")
+        filled["altimeter_unit"] = "hPa"
+        filled["takeoff_weight_lb"] = values.get("takeoff_weight_lb")
+        fields = render(request, "logbook/_conditions_fields.html", {"values": filled, "errors": {}, "oob": True})
+        response = HTMLResponse(response.body.decode() + fields.body.decode(), headers={"Vary": "HX-Request"})
+    return response
+
+
+def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
+    newer = logbook.superseded_by(db, sortie)
+    is_editor = sortie.instructor_id == person.id or person.has_role("chief_pilot")
+    editable = sortie.state == "draft" and newer is None and is_editor
+    versions = logbook.versions(db, sortie)
+    version_signatures = {}
+    for v in versions:
+        version_signatures[v.id] = [
+            {"signer_name": db.get(Person, s.signer_id).name, "signed_at": s.signed_at, "statement": s.statement,
+             "content_sha256": s.content_sha256}
+            for s in logbook.signatures(db, v)
+        ]
+    state = logbook.display_state(db, sortie)
+    last = sortie.attempts[-1] if sortie.attempts else None
+    return {
+        "person": person, "sortie": sortie, "newer": newer, "editable": editable,
+        "is_instructor": sortie.instructor_id == person.id, "states": {sortie.id: state},
+        "local_time": sortie.flown_at.astimezone(_timezone(db)), "timezone": fleet.school(db).timezone,
+        "versions": versions, "version_signatures": version_signatures,
+        "sign_statement": MEANINGS["instructor_certifies"],
+        "can_amend": state in ("signed", "acknowledged") and is_editor,
+        "can_acknowledge": state == "signed" and sortie.pilot_id == person.id,
+        **_new_attempt_context(sortie, last),
+    }
+
+
+def _new_attempt_context(sortie: Sortie, previous: Attempt | None) -> dict:
+    """A new attempt starts from the previous one's maneuver, termination and direction."""
+    values = {}
+    if previous is not None:
+        values = {"maneuver": previous.maneuver, "termination": previous.termination,
+                  "landing_dir_deg": _plain(previous.landing_dir_deg), "entry_height_ft": _plain(previous.entry_height_ft),
+                  "entry_kias": _plain(previous.entry_kias)}
+    return {"values": values, "errors": {}, "landing_dirs": sortie.site.landing_dirs_deg or [],
+            "next_sequence": max((a.sequence for a in sortie.attempts), default=0) + 1}
+
+
+def _plain(value):
+    """Show 270.0 as 270 in a form."""
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    return value
+
+
+@router.get("/sorties/{sortie_id}", name="sortie_sheet")
+def sortie_sheet(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    return render(request, "logbook/sortie_sheet.html", _sheet_context(db, person, sortie))
+
+
+def _attempt_values(form) -> dict:
+    values = blank_to_none(form, [n for n in ATTEMPT_NAMES if n != "takeover"])
+    values["takeover"] = form.get("takeover") in ("1", "on", "true")
+    values["remarks"] = values["remarks"] or ""
+    return values
+
+
+def _form_error(request, sortie: Sortie, values: dict, errors: dict, message: str | None,
+                attempt: Attempt | None = None):
+    """Send the form back in place with the errors marked; nothing was saved."""
+    context = {"sortie": sortie, "values": values, "errors": errors, "form_message": message or _summary(errors),
+               "landing_dirs": sortie.site.landing_dirs_deg or [],
+               "next_sequence": max((a.sequence for a in sortie.attempts), default=0) + 1}
+    target = "#attempt-form"
+    if attempt is not None:
+        context |= {"attempt_id": attempt.id, "sequence": attempt.sequence}
+        target = f"#attempt-{attempt.id}"
+    response = render(request, "logbook/_attempt_form.html", context, status_code=422)
+    response.headers["HX-Retarget"] = target
+    response.headers["HX-Reswap"] = "outerHTML"
+    return response
+
+
+@router.post("/sorties/{sortie_id}/attempts", name="attempt_add")
+async def attempt_add(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    """Add an attempt: the new card goes to the list, and a fresh form starts from its values."""
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    values = _attempt_values(await request.form())
+    data, errors, message = validate(AttemptFields, values)
+    if data is None:
+        return _form_error(request, sortie, values, errors, message)
+    attempt = logbook.add_attempt(db, actor=person, sortie=sortie, data=data)
+    card = render(request, "logbook/_attempt_card.html", {"a": attempt, "editable": True})
+    form = render(request, "logbook/_attempt_form.html", {"sortie": sortie, "oob": True,
+                                                         **_new_attempt_context(sortie, attempt)})
+    return HTMLResponse(card.body.decode() + form.body.decode(), headers={"Vary": "HX-Request",
+                                                                         "Cache-Control": "no-store"})
+
+
+@router.get("/attempts/{attempt_id}/edit", name="attempt_edit_form")
+def attempt_edit_form(attempt_id: int, request: Request, db: DbSession, person: PageUser):
+    attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
+    values = {name: _plain(getattr(attempt, name)) for name in ATTEMPT_NAMES}
+    return render(request, "logbook/_attempt_form.html", {
+        "sortie": attempt.sortie, "values": values, "errors": {}, "attempt_id": attempt.id,
+        "sequence": attempt.sequence, "landing_dirs": attempt.sortie.site.landing_dirs_deg or [],
+    })
+
+
+@router.get("/attempts/{attempt_id}", name="attempt_card")
+def attempt_card(attempt_id: int, request: Request, db: DbSession, person: PageUser):
+    attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
+    editable = attempt.sortie.state == "draft" and (attempt.sortie.instructor_id == person.id
+                                                    or person.has_role("chief_pilot"))
+    return render(request, "logbook/_attempt_card.html", {"a": attempt, "editable": editable})
+
+
+@router.post("/attempts/{attempt_id}", name="attempt_update")
+async def attempt_update(attempt_id: int, request: Request, db: DbSession, person: PageUser):
+    attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
+    values = _attempt_values(await request.form())
+    data, errors, message = validate(AttemptFields, values)
+    if data is None:
+        return _form_error(request, attempt.sortie, values, errors, message, attempt)
+    logbook.update_attempt(db, actor=person, attempt=attempt, data=data)
+    return render(request, "logbook/_attempt_card.html", {"a": attempt, "editable": True})
+
+
+@router.post("/attempts/{attempt_id}/delete", name="attempt_delete")
+def attempt_delete(attempt_id: int, request: Request, db: DbSession, person: PageUser):
+    attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
+    logbook.delete_attempt(db, actor=person, attempt=attempt)
+    return HTMLResponse("", headers={"Vary": "HX-Request"})
+
+
+@router.post("/sorties/{sortie_id}/sign", name="sortie_sign")
+async def sortie_sign(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    form = await request.form()
+    try:
+        logbook.sign_sortie(db, actor=person, sortie=sortie, password=str(form.get("password", "")))
+    except Invalid as refusal:
+        db.commit()  # the refused attempt stays in the audit chain
+        context = _sheet_context(db, person, sortie)
+        context["message"] = refusal.message
+        response = render(request, "logbook/sortie_sheet.html", context, status_code=422)
+        return response
+    return RedirectResponse(request.url_for("sortie_sheet", sortie_id=sortie.id), status_code=303)
+
+
+@router.post("/sorties/{sortie_id}/acknowledge", name="sortie_acknowledge")
+def sortie_acknowledge(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    logbook.acknowledge_sortie(db, actor=person, sortie=sortie)
+    return RedirectResponse(request.url_for("sortie_sheet", sortie_id=sortie.id), status_code=303)
+
+
+@router.post("/sorties/{sortie_id}/amend", name="sortie_amend")
+async def sortie_amend(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    form = await request.form()
+    amendment = logbook.amend_sortie(db, actor=person, sortie=sortie, reason=str(form.get("reason", "")))
+    return RedirectResponse(request.url_for("sortie_sheet", sortie_id=amendment.id), status_code=303)

@@ -1,0 +1,343 @@
+"""Sorties and attempts: create, edit while a draft, sign, acknowledge, amend."""
+import hashlib
+from datetime import datetime
+from zoneinfo import ZoneInfo
+
+from sqlalchemy import select
+from sqlalchemy.orm import Session
+
+from server.compute.atmosphere import inhg_to_hpa
+from server.errors import Conflict, Forbidden, Invalid, NotFound
+from server.fleet import service as fleet
+from server.fleet.models import Aircraft, Site
+from server.logbook import derive
+from server.logbook.models import Attempt, Sortie
+from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
+from server.people import service as people
+from server.people.models import Person
+from server.people.security import verify_password
+from server.records import audit
+from server.records.models import MEANINGS, Signature
+from server.training.service import standard_for
+
+ATTEMPT_FIELDS = tuple(AttemptFields.model_fields)
+SORTIE_RECORD_FIELDS = (
+    "version", "supersedes_id", "amendment_reason", "flown_at", "aircraft_id", "instructor_id",
+    "pilot_id", "site_id", "wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa", "metar",
+    "takeoff_weight_lb", "remarks", "pressure_altitude_ft", "density_altitude_ft",
+)
+ATTEMPT_RECORD_FIELDS = ATTEMPT_FIELDS + (
+    "sequence", "score", "flags", "standard_id", "flare_band_low_ft", "flare_band_high_ft",
+)
+
+
+# ---- reading -------------------------------------------------------------------------------
+
+def get_sortie(session: Session, *, sortie_id: int, viewer: Person) -> Sortie:
+    """A sortie the viewer may see; 404 for one they may not, so its existence is not revealed."""
+    sortie = session.get(Sortie, sortie_id)
+    if sortie is None or not may_view(session, viewer=viewer, sortie=sortie):
+        raise NotFound("No such sortie.")
+    return sortie
+
+
+def may_view(session: Session, *, viewer: Person, sortie: Sortie) -> bool:
+    return sortie.instructor_id == viewer.id or people.can_view_pilot(session, viewer=viewer,
+                                                                      pilot_id=sortie.pilot_id)
+
+
+def get_attempt(session: Session, *, attempt_id: int, viewer: Person) -> Attempt:
+    attempt = session.get(Attempt, attempt_id)
+    if attempt is None or not may_view(session, viewer=viewer, sortie=attempt.sortie):
+        raise NotFound("No such attempt.")
+    return attempt
+
+
+def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = None,
+                 limit: int = 50, offset: int = 0) -> list[Sortie]:
+    """Newest first, only what the viewer may see, only the latest version of each record."""
+    superseding = select(Sortie.supersedes_id).where(Sortie.supersedes_id.is_not(None))
+    query = select(Sortie).where(Sortie.id.not_in(superseding)).order_by(Sortie.flown_at.desc(), Sortie.id.desc())
+    if pilot_id is not None:
+        query = query.where(Sortie.pilot_id == pilot_id)
+    if not viewer.sees_everyone:
+        ids = {viewer.id}
+        if viewer.has_role("instructor"):
+            ids |= people.student_ids_of(session, viewer.id)
+        query = query.where(Sortie.pilot_id.in_(ids) | (Sortie.instructor_id == viewer.id))
+    return list(session.scalars(query.limit(limit).offset(offset)))
+
+
+def superseded_by(session: Session, sortie: Sortie) -> Sortie | None:
+    return session.scalar(select(Sortie).where(Sortie.supersedes_id == sortie.id))
+
+
+def versions(session: Session, sortie: Sortie) -> list[Sortie]:
+    """Every version of this record, oldest first."""
+    chain = [sortie]
+    while chain[0].supersedes_id is not None:
+        chain.insert(0, session.get(Sortie, chain[0].supersedes_id))
+    while (newer := superseded_by(session, chain[-1])) is not None:
+        chain.append(newer)
+    return chain
+
+
+def signatures(session: Session, sortie: Sortie) -> list[Signature]:
+    return list(session.scalars(select(Signature).where(Signature.sortie_id == sortie.id).order_by(Signature.id)))
+
+
+def display_state(session: Session, sortie: Sortie) -> str:
+    """draft or signed as stored; amended once a newer version exists; acknowledged once the pilot read it."""
+    if superseded_by(session, sortie) is not None:
+        return "amended"
+    if sortie.state == "signed" and any(s.meaning == "pilot_acknowledges" for s in signatures(session, sortie)):
+        return "acknowledged"
+    return sortie.state
+
+
+def local_date(session: Session, moment: datetime):
+    return moment.astimezone(ZoneInfo(fleet.school(session).timezone)).date()
+
+
+# ---- writing a draft -----------------------------------------------------------------------
+
+def _require_draft(sortie: Sortie) -> None:
+    if sortie.state != "draft":
+        raise Conflict("This sortie is signed and cannot be changed. Make an amendment with a reason instead.")
+
+
+def _require_editor(session: Session, *, actor: Person, sortie: Sortie) -> None:
+    if not (sortie.instructor_id == actor.id or actor.has_role("chief_pilot")):
+        raise Forbidden("Only the sortie's instructor or a chief pilot can change it.")
+
+
+def _set_conditions(sortie: Sortie, data: SortieCreate | SortieUpdate, fields_set: set[str]) -> None:
+    for name in ("wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "metar", "remarks"):
+        if name in fields_set:
+            setattr(sortie, name, getattr(data, name))
+    if "altimeter_hpa" in fields_set and data.altimeter_hpa is not None:
+        sortie.altimeter_hpa, sortie.altimeter_unit = data.altimeter_hpa, "hPa"
+    elif "altimeter_inhg" in fields_set and data.altimeter_inhg is not None:
+        sortie.altimeter_hpa, sortie.altimeter_unit = round(inhg_to_hpa(data.altimeter_inhg), 2), "inHg"
+    elif "altimeter_hpa" in fields_set or "altimeter_inhg" in fields_set:
+        sortie.altimeter_hpa = None
+    if "takeoff_weight_kg" in fields_set and data.takeoff_weight_kg is not None:
+        sortie.takeoff_weight_lb = round(data.takeoff_weight_kg / KG_PER_LB, 1)
+    elif "takeoff_weight_lb" in fields_set:
+        sortie.takeoff_weight_lb = data.takeoff_weight_lb
+    _fill_from_metar(sortie)
+
+
+def _fill_from_metar(sortie: Sortie) -> None:
+    """A METAR fills the conditions it carries that were left empty."""
+    if not sortie.metar:
+        return
+    result = derive.conditions(ConditionsRequest(metar=sortie.metar))
+    if result.message:
+        raise Invalid(result.message)
+    for name in ("wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa"):
+        if getattr(sortie, name) is None and name in result.filled_from_metar:
+            setattr(sortie, name, getattr(result, name))
+
+
+def create_sortie(session: Session, *, actor: Person, data: SortieCreate) -> Sortie:
+    """Start a sortie; the instructor is the caller unless a chief pilot names another."""
+    if not actor.has_role("instructor", "chief_pilot"):
+        raise Forbidden("Only instructors and chief pilots start sorties.")
+    instructor_id = data.instructor_id if data.instructor_id is not None else actor.id
+    if instructor_id != actor.id and not actor.has_role("chief_pilot"):
+        raise Forbidden("An instructor starts sorties in their own name.")
+    instructor = session.get(Person, instructor_id)
+    if instructor is None or not instructor.has_role("instructor"):
+        raise Invalid("instructor_id does not name an instructor.")
+    pilot = session.get(Person, data.pilot_id)
+    if pilot is None or not pilot.active:
+        raise Invalid("pilot_id does not name an active person.")
+    if session.get(Aircraft, data.aircraft_id) is None:
+        raise Invalid("aircraft_id does not name an aircraft.")
+    if session.get(Site, data.site_id) is None:
+        raise Invalid("site_id does not name a site.")
+    sortie = Sortie(
+        flown_at=data.flown_at, aircraft_id=data.aircraft_id, instructor_id=instructor_id,
+        pilot_id=data.pilot_id, site_id=data.site_id, created_by_id=actor.id, state="draft",
+        remarks="",
+    )
+    _set_conditions(sortie, data, data.model_fields_set | {"remarks"})
+    session.add(sortie)
+    session.flush()
+    session.refresh(sortie)
+    derive.apply_conditions(sortie)
+    audit.append(session, actor_id=actor.id, action="create", entity="sortie", entity_id=sortie.id,
+                 after=sortie_record(sortie))
+    return sortie
+
+
+def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: SortieUpdate) -> Sortie:
+    """Change a draft's conditions; every attempt is rescored with them."""
+    _require_editor(session, actor=actor, sortie=sortie)
+    _require_draft(sortie)
+    before = sortie_record(sortie)
+    fields_set = data.model_fields_set
+    if "flown_at" in fields_set and data.flown_at is not None:
+        sortie.flown_at = data.flown_at
+    if "aircraft_id" in fields_set and data.aircraft_id is not None:
+        if session.get(Aircraft, data.aircraft_id) is None:
+            raise Invalid("aircraft_id does not name an aircraft.")
+        sortie.aircraft_id = data.aircraft_id
+    if "site_id" in fields_set and data.site_id is not None:
+        if session.get(Site, data.site_id) is None:
+            raise Invalid("site_id does not name a site.")
+        sortie.site_id = data.site_id
+    _set_conditions(sortie, data, fields_set)
+    session.flush()
+    session.expire(sortie, ["aircraft", "site"])
+    derive.apply_conditions(sortie)
+    for attempt in sortie.attempts:
+        attempt.flown_on = local_date(session, sortie.flown_at)
+        derive.score(attempt, sortie, standard_for(session, pilot_id=sortie.pilot_id, maneuver=attempt.maneuver))
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="edit", entity="sortie", entity_id=sortie.id,
+                 before=before, after=sortie_record(sortie))
+    return sortie
+
+
+def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: AttemptFields) -> Attempt:
+    """Log one practice autorotation and score it at once."""
+    _require_editor(session, actor=actor, sortie=sortie)
+    _require_draft(sortie)
+    sequence = max((a.sequence for a in sortie.attempts), default=0) + 1
+    standard = standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver)
+    attempt = Attempt(sortie=sortie, sequence=sequence, pilot_id=sortie.pilot_id,
+                      flown_on=local_date(session, sortie.flown_at), **data.model_dump())
+    derive.score(attempt, sortie, standard)
+    session.add(attempt)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="create", entity="attempt", entity_id=attempt.id,
+                 after=attempt_record(attempt))
+    return attempt
+
+
+def update_attempt(session: Session, *, actor: Person, attempt: Attempt, data: AttemptFields) -> Attempt:
+    sortie = attempt.sortie
+    _require_editor(session, actor=actor, sortie=sortie)
+    _require_draft(sortie)
+    before = attempt_record(attempt)
+    for name, value in data.model_dump().items():
+        setattr(attempt, name, value)
+    derive.score(attempt, sortie, standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver))
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="edit", entity="attempt", entity_id=attempt.id,
+                 before=before, after=attempt_record(attempt))
+    return attempt
+
+
+def delete_attempt(session: Session, *, actor: Person, attempt: Attempt) -> None:
+    sortie = attempt.sortie
+    _require_editor(session, actor=actor, sortie=sortie)
+    _require_draft(sortie)
+    before = attempt_record(attempt)
+    sortie.attempts.remove(attempt)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="delete", entity="attempt", entity_id=before["id"],
+                 before=before)
+
+
+# ---- signatures and amendments -------------------------------------------------------------
+
+def sortie_record(sortie: Sortie) -> dict:
+    """The canonical content of one sortie version, attempts included, as signed."""
+    record = {name: getattr(sortie, name) for name in SORTIE_RECORD_FIELDS}
+    record["id"] = sortie.id
+    record["flown_at"] = sortie.flown_at.isoformat()
+    record["attempts"] = [attempt_record(a) for a in sorted(sortie.attempts, key=lambda a: a.sequence)]
+    return record
+
+
+def attempt_record(attempt: Attempt) -> dict:
+    record = {name: getattr(attempt, name) for name in ATTEMPT_RECORD_FIELDS}
+    record["id"] = attempt.id
+    return record
+
+
+def content_hash(sortie: Sortie) -> str:
+    return hashlib.sha256(audit.canonical_json(sortie_record(sortie)).encode()).hexdigest()
+
+
+def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: str) -> Signature:
+    """The assigned instructor certifies the sortie, re-entering their password in this request."""
+    if sortie.instructor_id != actor.id:
+        audit.append(session, actor_id=actor.id, action="sign_refused", entity="sortie", entity_id=sortie.id,
+                     reason="not the assigned instructor")
+        raise Forbidden("Only the sortie's assigned instructor can sign it.")
+    _require_draft(sortie)
+    if not verify_password(actor.password_hash, password):
+        audit.append(session, actor_id=actor.id, action="sign_refused", entity="sortie", entity_id=sortie.id,
+                     reason="wrong password")
+        raise Invalid("That password is not right; the sortie stays unsigned.")
+    return record_instructor_signature(session, actor=actor, sortie=sortie)
+
+
+def record_instructor_signature(session: Session, *, actor: Person, sortie: Sortie) -> Signature:
+    """Seal a draft with the instructor's signature; callers have checked who signs and how."""
+    _require_draft(sortie)
+    if not sortie.attempts:
+        raise Invalid("Log at least one attempt before signing the sortie.")
+    sortie.state = "signed"
+    session.flush()
+    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning="instructor_certifies",
+                          statement=MEANINGS["instructor_certifies"], content_sha256=content_hash(sortie))
+    session.add(signature)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
+                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning})
+    return signature
+
+
+def acknowledge_sortie(session: Session, *, actor: Person, sortie: Sortie) -> Signature:
+    """The pilot acknowledges having read a signed sortie."""
+    if sortie.pilot_id != actor.id:
+        raise Forbidden("Only the pilot of this sortie can acknowledge it.")
+    if sortie.state != "signed" or superseded_by(session, sortie) is not None:
+        raise Conflict("Only the latest signed version of a sortie can be acknowledged.")
+    if any(s.meaning == "pilot_acknowledges" and s.signer_id == actor.id for s in signatures(session, sortie)):
+        raise Conflict("You have acknowledged this sortie already.")
+    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning="pilot_acknowledges",
+                          statement=MEANINGS["pilot_acknowledges"], content_sha256=content_hash(sortie))
+    session.add(signature)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="acknowledge", entity="sortie", entity_id=sortie.id,
+                 after={"content_sha256": signature.content_sha256})
+    return signature
+
+
+def amend_sortie(session: Session, *, actor: Person, sortie: Sortie, reason: str) -> Sortie:
+    """Start a new, unsigned version of a signed sortie; the signed one stays as it was."""
+    _require_editor(session, actor=actor, sortie=sortie)
+    if sortie.state != "signed":
+        raise Conflict("A draft can be edited directly; only a signed sortie needs an amendment.")
+    if superseded_by(session, sortie) is not None:
+        raise Conflict("This version has been amended already; amend the latest version.")
+    if not reason or len(reason.strip()) < 3:
+        raise Invalid("Say why the signed record is being amended.")
+    copy = Sortie(
+        version=sortie.version + 1, supersedes_id=sortie.id, amendment_reason=reason.strip(), state="draft",
+        created_by_id=actor.id,
+        **{name: getattr(sortie, name) for name in SORTIE_RECORD_FIELDS
+           if name not in ("version", "supersedes_id", "amendment_reason")},
+        altimeter_unit=sortie.altimeter_unit, density_ratio=sortie.density_ratio,
+    )
+    session.add(copy)
+    session.flush()
+    for old in sortie.attempts:
+        values = {name: getattr(old, name) for name in ATTEMPT_FIELDS}
+        clone = Attempt(sortie_id=copy.id, sequence=old.sequence, pilot_id=old.pilot_id, flown_on=old.flown_on,
+                        standard_id=old.standard_id, headwind_kt=old.headwind_kt, crosswind_kt=old.crosswind_kt,
+                        flare_band_low_ft=old.flare_band_low_ft, flare_band_high_ft=old.flare_band_high_ft,
+                        score=old.score, parts=old.parts, flags=old.flags, satisfactory=old.satisfactory,
+                        within_tolerances=old.within_tolerances, **values)
+        session.add(clone)
+    session.flush()
+    session.refresh(copy)
+    audit.append(session, actor_id=actor.id, action="amend", entity="sortie", entity_id=copy.id,
+                 before={"supersedes_id": sortie.id}, after=sortie_record(copy), reason=reason.strip())
+    return copy

@@ -1,0 +1,24 @@
+"""Every table, imported in one place for Alembic and the app."""
+from server.currency.models import CalendarFeed, CurrencyRule
+from server.db import Base
+from server.fleet.models import Aircraft, HelicopterType, School, Site
+from server.logbook.models import Attempt, Sortie
+from server.people.models import ApiToken, Person, PersonRole, SignInFailure, UserSession
+from server.records.models import AuditEvent, IdempotencyKey, Signature
+from server.training.models import (
+    Enrolment,
+    Lesson,
+    LessonCompletion,
+    LessonRequirement,
+    Program,
+    Stage,
+    StageCheck,
+    Standard,
+)
+
+__all__ = [
+    "Aircraft", "ApiToken", "Attempt", "AuditEvent", "Base", "CalendarFeed", "CurrencyRule",
+    "Enrolment", "HelicopterType", "IdempotencyKey", "Lesson", "LessonCompletion",
+    "LessonRequirement", "Person", "PersonRole", "Program", "School", "SignInFailure", "Signature",
+    "Site", "Sortie", "Stage", "StageCheck", "Standard", "UserSession",
+]

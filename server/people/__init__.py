@@ -1,0 +1,1 @@
+"""People: accounts, roles, sign-in sessions and API tokens."""

@@ -1,0 +1,202 @@
+"""Accounts, sign-in, sessions, tokens and who may see whose records."""
+from datetime import timedelta
+
+from sqlalchemy import delete, func, or_, select
+from sqlalchemy.orm import Session
+
+from server.config import Settings
+from server.errors import Conflict, Invalid, NotFound, Unauthorized
+from server.logbook.models import Sortie
+from server.people.models import ROLES, ApiToken, Person, PersonRole, SignInFailure, UserSession
+from server.people.security import hash_password, new_secret, sha256_hex, verify_password
+from server.records import audit
+from server.training.models import Enrolment
+from server.types import utcnow
+
+# Sign-in throttling: after this many refusals for one email in the window, refuse without checking.
+THROTTLE_LIMIT = 10
+THROTTLE_WINDOW = timedelta(minutes=15)
+MIN_PASSWORD_LENGTH = 8
+
+
+def normalise_email(email: str) -> str:
+    return email.strip().lower()
+
+
+def create_person(session: Session, *, name: str, email: str, roles: list[str], password: str,
+                  actor_id: int | None = None) -> Person:
+    """Add a person with a hashed password; refuse a duplicate email or an unknown role."""
+    email = normalise_email(email)
+    if not name.strip():
+        raise Invalid("A name is needed.")
+    if "@" not in email:
+        raise Invalid("The email address needs an @.")
+    unknown = sorted(set(roles) - set(ROLES))
+    if unknown or not roles:
+        raise Invalid(f"Roles must be chosen from: {', '.join(ROLES)}.")
+    if len(password) < MIN_PASSWORD_LENGTH:
+        raise Invalid(f"The password needs at least {MIN_PASSWORD_LENGTH} characters.")
+    if session.scalar(select(Person.id).where(Person.email == email)) is not None:
+        raise Conflict(f"Someone already signs in as {email}.")
+    person = Person(name=name.strip(), email=email, password_hash=hash_password(password), active=True)
+    person.role_rows = [PersonRole(role=r) for r in sorted(set(roles))]
+    session.add(person)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="create", entity="person", entity_id=person.id,
+                 after={"name": person.name, "email": person.email, "roles": person.roles})
+    return person
+
+
+def update_person(session: Session, *, person: Person, actor_id: int, name: str | None = None,
+                  roles: list[str] | None = None, active: bool | None = None,
+                  password: str | None = None) -> Person:
+    before = person_snapshot(person)
+    if name is not None:
+        if not name.strip():
+            raise Invalid("A name is needed.")
+        person.name = name.strip()
+    if roles is not None:
+        unknown = sorted(set(roles) - set(ROLES))
+        if unknown or not roles:
+            raise Invalid(f"Roles must be chosen from: {', '.join(ROLES)}.")
+        person.role_rows = [PersonRole(role=r) for r in sorted(set(roles))]
+    if password is not None:
+        if len(password) < MIN_PASSWORD_LENGTH:
+            raise Invalid(f"The password needs at least {MIN_PASSWORD_LENGTH} characters.")
+        person.password_hash = hash_password(password)
+    if active is not None and active != person.active:
+        person.active = active
+        if not active:
+            end_all_sessions(session, person_id=person.id)
+    session.flush()
+    audit.append(session, actor_id=actor_id, action="edit", entity="person", entity_id=person.id,
+                 before=before, after=person_snapshot(person))
+    return person
+
+
+def person_snapshot(person: Person) -> dict:
+    return {"name": person.name, "email": person.email, "roles": person.roles, "active": person.active}
+
+
+def get_person(session: Session, person_id: int) -> Person:
+    person = session.get(Person, person_id)
+    if person is None:
+        raise NotFound("No such person.")
+    return person
+
+
+def find_by_email(session: Session, email: str) -> Person | None:
+    return session.scalar(select(Person).where(Person.email == normalise_email(email)))
+
+
+def authenticate(session: Session, *, email: str, password: str, client: str = "") -> Person:
+    """Check a password; the refusal never says whether the account exists."""
+    email = normalise_email(email)
+    since = utcnow() - THROTTLE_WINDOW
+    recent = session.scalar(
+        select(func.count()).select_from(SignInFailure)
+        .where(SignInFailure.email == email, SignInFailure.at >= since)
+    )
+    person = find_by_email(session, email)
+    ok = (
+        recent < THROTTLE_LIMIT
+        and verify_password(person.password_hash if person else None, password)
+        and person is not None
+        and person.active
+    )
+    if not ok:
+        session.add(SignInFailure(email=email, client=client[:64]))
+        audit.append(session, actor_id=None, action="sign_in_refused", entity="person",
+                     entity_id=None, after={"email": email})
+        if recent >= THROTTLE_LIMIT:
+            raise Unauthorized("Too many failed sign-ins for this email. Wait 15 minutes and try again.")
+        raise Unauthorized("That email and password do not match an active account.")
+    audit.append(session, actor_id=person.id, action="sign_in", entity="person", entity_id=person.id)
+    return person
+
+
+def start_session(session: Session, *, person: Person | None) -> tuple[str, UserSession]:
+    """Open a new session with a fresh id (never reuse the id from before sign-in)."""
+    cookie_value = new_secret()
+    row = UserSession(id=sha256_hex(cookie_value), person_id=person.id if person else None,
+                      csrf_token=new_secret())
+    session.add(row)
+    session.flush()
+    return cookie_value, row
+
+
+def load_session(session: Session, *, cookie_value: str, settings: Settings) -> UserSession | None:
+    """The live session for a cookie, or None when unknown, ended or timed out."""
+    row = session.get(UserSession, sha256_hex(cookie_value))
+    if row is None or row.ended_at is not None:
+        return None
+    now = utcnow()
+    if (now - row.last_seen_at > timedelta(minutes=settings.session_idle_minutes)
+            or now - row.created_at > timedelta(hours=settings.session_absolute_hours)):
+        row.ended_at = now
+        return None
+    # Touch at most once a minute to keep reads cheap.
+    if now - row.last_seen_at > timedelta(minutes=1):
+        row.last_seen_at = now
+    return row
+
+
+def end_session(session: Session, *, row: UserSession) -> None:
+    row.ended_at = utcnow()
+
+
+def end_all_sessions(session: Session, *, person_id: int) -> None:
+    for row in session.scalars(select(UserSession).where(UserSession.person_id == person_id,
+                                                         UserSession.ended_at.is_(None))):
+        row.ended_at = utcnow()
+
+
+def purge_old_sessions(session: Session, *, settings: Settings) -> None:
+    cutoff = utcnow() - timedelta(hours=settings.session_absolute_hours)
+    session.execute(delete(UserSession).where(UserSession.created_at < cutoff))
+
+
+def issue_token(session: Session, *, person: Person, label: str = "") -> str:
+    """Make a personal API token; only its hash is kept, so it is shown once."""
+    token = new_secret("fbk_")
+    session.add(ApiToken(person_id=person.id, token_sha256=sha256_hex(token), label=label))
+    audit.append(session, actor_id=person.id, action="create", entity="api_token", after={"label": label})
+    return token
+
+
+def person_for_token(session: Session, token: str) -> Person | None:
+    row = session.scalar(select(ApiToken).where(ApiToken.token_sha256 == sha256_hex(token),
+                                                ApiToken.revoked_at.is_(None)))
+    if row is None:
+        return None
+    person = session.get(Person, row.person_id)
+    return person if person is not None and person.active else None
+
+
+def student_ids_of(session: Session, instructor_id: int) -> set[int]:
+    """Pilots an instructor teaches: enrolled with them, or flown with them."""
+    enrolled = session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id))
+    flown = session.scalars(select(Sortie.pilot_id).where(Sortie.instructor_id == instructor_id).distinct())
+    return set(enrolled) | set(flown)
+
+
+def can_view_pilot(session: Session, *, viewer: Person, pilot_id: int) -> bool:
+    """Students see themselves, instructors their students, chief pilots and admins everyone."""
+    if viewer.sees_everyone or viewer.id == pilot_id:
+        return True
+    if viewer.has_role("instructor"):
+        return pilot_id in student_ids_of(session, viewer.id)
+    return False
+
+
+def visible_people(session: Session, *, viewer: Person) -> list[Person]:
+    query = select(Person).order_by(Person.name)
+    if not viewer.sees_everyone:
+        ids = {viewer.id}
+        if viewer.has_role("instructor"):
+            ids |= student_ids_of(session, viewer.id)
+            # Instructors also need to pick any student when starting a sortie.
+            query = query.where(or_(Person.id.in_(ids), Person.role_rows.any(PersonRole.role == "student")))
+        else:
+            query = query.where(Person.id.in_(ids))
+    return list(session.scalars(query))

@@ -1,0 +1,1 @@
+"""Records: signatures, the audit chain, idempotency keys and backups."""

@@ -1,0 +1,1 @@
+"""Training: programs (syllabi), standards, enrolment and progress."""

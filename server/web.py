@@ -1,0 +1,51 @@
+"""Templates and the helpers every HTML route uses."""
+from fastapi import Request
+from fastapi.templating import Jinja2Templates
+from starlette.responses import HTMLResponse
+
+from server.config import PROJECT_ROOT
+from server.people.models import ROLE_LABELS
+from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+
+templates = Jinja2Templates(directory=str(PROJECT_ROOT / "templates"))
+
+CAUTION = (
+    "Computed figures are training aids that depend on the data entered. The aircraft flight manual, "
+    "the operator's approved procedures, local rules and the judgement of a licensed instructor always "
+    "come first."
+)
+
+STATE_LABELS = {
+    "draft": "Draft", "signed": "Signed", "acknowledged": "Signed and acknowledged",
+    "amended": "Amended (older version)",
+}
+
+
+def _fmt(value, digits: int = 0, unit: str = "") -> str:
+    if value is None:
+        return "—"
+    text = f"{value:,.{digits}f}"
+    return f"{text} {unit}".strip()
+
+
+templates.env.filters["num"] = _fmt
+templates.env.globals.update(
+    CAUTION=CAUTION, MANEUVER_LABELS=MANEUVER_LABELS, TERMINATION_LABELS=TERMINATION_LABELS,
+    ROLE_LABELS=ROLE_LABELS, STATE_LABELS=STATE_LABELS,
+)
+
+
+def is_htmx(request: Request) -> bool:
+    return request.headers.get("HX-Request") == "true"
+
+
+def render(request: Request, template: str, context: dict | None = None, *, status_code: int = 200,
+           fragment: str | None = None) -> HTMLResponse:
+    """Render a page, or only its fragment when htmx asked; one URL, so say it varies."""
+    context = dict(context or {})
+    context.setdefault("csrf_token", getattr(request.state, "csrf_token", ""))
+    name = fragment if fragment and is_htmx(request) else template
+    response = templates.TemplateResponse(request, name, context, status_code=status_code)
+    response.headers["Vary"] = "HX-Request"
+    response.headers["Cache-Control"] = "no-store"
+    return response

@@ -1,0 +1,12 @@
+// Small helpers for the sortie sheet; no inline scripts so a strict content security policy holds.
+document.addEventListener("click", function (event) {
+  // "Common values one tap away": a chip fills the field it names.
+  var chip = event.target.closest("[data-fill]");
+  if (!chip) return;
+  var form = chip.closest("form");
+  var input = form && form.querySelector('[name="' + chip.dataset.fill + '"]');
+  if (input) {
+    input.value = chip.dataset.value;
+    input.dispatchEvent(new Event("input", { bubbles: true }));
+  }
+});

@@ -1,0 +1,74 @@
+"""Builders for the invented test school; every name and figure is invented for the tests."""
+from dataclasses import dataclass
+from datetime import UTC, datetime
+
+from sqlalchemy.orm import Session
+
+from server.fleet.models import Aircraft, HelicopterType, Site
+from server.logbook import service as logbook
+from server.logbook.models import Sortie
+from server.logbook.schemas import AttemptFields, SortieCreate
+from server.people import service as people
+from server.people.models import Person
+
+PASSWORD = "test-password-1"
+
+
+@dataclass
+class World:
+    chief: Person
+    instructor: Person
+    other_instructor: Person
+    student: Person
+    other_student: Person
+    helicopter: HelicopterType
+    aircraft: Aircraft
+    site: Site
+
+
+def build_world(session: Session) -> World:
+    def person(key, name, roles):
+        return people.create_person(session, name=name, email=f"{key}@school.example", roles=roles,
+                                    password=PASSWORD)
+
+    helicopter = HelicopterType(
+        designation="Wren W-1 (test)", rotor_radius_ft=12.5, blade_count=2, normal_rotor_rpm=530,
+        nr_power_off_min_pct=90, nr_power_off_max_pct=108, autorotation_kias=65, reference_weight_lb=1400,
+        flare_band_low_ft=70, flare_band_high_ft=110, touchdown_speed_max_kt=8,
+        hv_avoid=[[[0, 10], [0, 400], [30, 300], [40, 100], [15, 10]]],
+    )
+    session.add(helicopter)
+    session.flush()
+    aircraft = Aircraft(registration="TS-WRA", type_id=helicopter.id)
+    site = Site(name="Test Field", elevation_ft=500, landing_dirs_deg=[90, 270])
+    session.add_all([aircraft, site])
+    session.flush()
+    return World(
+        chief=person("chief", "Chief Tester", ["chief_pilot", "instructor"]),
+        instructor=person("instructor", "Ivo Instructor", ["instructor"]),
+        other_instructor=person("other", "Olga Otherinstructor", ["instructor"]),
+        student=person("student", "Sam Student", ["student"]),
+        other_student=person("student2", "Tess Otherstudent", ["student"]),
+        helicopter=helicopter, aircraft=aircraft, site=site,
+    )
+
+
+def make_sortie(session: Session, world: World, *, instructor: Person | None = None, pilot: Person | None = None,
+                attempts: int = 0, sign: bool = False, flown_at: datetime | None = None, **conditions) -> Sortie:
+    """A sortie through the service layer, with `attempts` ordinary straight-in touchdowns."""
+    instructor = instructor or world.instructor
+    data = SortieCreate(flown_at=flown_at or datetime(2026, 11, 20, 10, 0, tzinfo=UTC),
+                        aircraft_id=world.aircraft.id, pilot_id=(pilot or world.student).id, site_id=world.site.id,
+                        **({"oat_c": 15, "altimeter_hpa": 1013.25} | conditions))
+    actor = session.get(Person, instructor.id)
+    sortie = logbook.create_sortie(session, actor=actor, data=data)
+    for _ in range(attempts):
+        logbook.add_attempt(session, actor=actor, sortie=sortie, data=AttemptFields(
+            maneuver="straight_in", termination="touchdown", descent_kias=65, nr_low_pct=95, nr_high_pct=104,
+            flare_height_ft=90, touchdown_speed_kt=3, point_error_ft=20, heading_error_deg=2))
+    if sign:
+        session.flush()
+        session.refresh(sortie)
+        logbook.record_instructor_signature(session, actor=actor, sortie=sortie)
+    session.commit()
+    return sortie
