@@ -3,7 +3,15 @@ from fastapi import APIRouter
 
 from server.deps import ApiUser, DbSession, require_role
 from server.fleet import service as fleet
-from server.fleet.schemas import AircraftCreate, AircraftRead, SiteCreate, SiteRead, TypeCreate, TypeRead
+from server.fleet.schemas import (
+    AircraftCreate,
+    AircraftRead,
+    SiteCreate,
+    SiteRead,
+    TypeCreate,
+    TypeRead,
+    TypeUpdate,
+)
 
 router = APIRouter(tags=["fleet"])
 
@@ -22,6 +30,14 @@ def create_type(data: TypeCreate, db: DbSession, person: ApiUser):
 @router.get("/types/{type_id}", response_model=TypeRead)
 def get_type(type_id: int, db: DbSession, person: ApiUser):
     return fleet.type_read(fleet.get_type(db, type_id))
+
+
+@router.patch("/types/{type_id}", response_model=TypeRead)
+def update_type(type_id: int, data: TypeUpdate, db: DbSession, person: ApiUser):
+    """Change some fields of a helicopter type; attempts already scored keep their figures."""
+    require_role(person, "chief_pilot", "admin")
+    row = fleet.get_type(db, type_id)
+    return fleet.type_read(fleet.change_type(db, row=row, changes=data, actor_id=person.id))
 
 
 @router.get("/aircraft", response_model=list[AircraftRead])

@@ -40,6 +40,24 @@ class TypeCreate(TypeBase):
     model_config = ConfigDict(extra="forbid")
 
 
+class TypeUpdate(BaseModel):
+    """A partial change to a helicopter type: only the fields sent change; the result is checked in full."""
+
+    model_config = ConfigDict(extra="forbid")
+    designation: str | None = None
+    rotor_radius_ft: float | None = None
+    blade_count: int | None = None
+    rotor_inertia_slug_ft2: float | None = None
+    normal_rotor_rpm: float | None = None
+    nr_power_off_min_pct: float | None = None
+    nr_power_off_max_pct: float | None = None
+    autorotation_kias: float | None = None
+    reference_weight_lb: float | None = None
+    flare_band_ft: tuple[float, float] | None = None
+    touchdown_speed_max_kt: float | None = None
+    hv_avoid: list[list[Point]] | None = None
+
+
 class TypeRead(TypeBase):
     id: int
 

@@ -1,10 +1,13 @@
 """Helicopter types, aircraft and sites."""
+from pydantic import ValidationError
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
+from server.compute.hv import in_avoid_region
 from server.errors import Conflict, Invalid, NotFound
+from server.fleet.hvchart import Entry
 from server.fleet.models import Aircraft, HelicopterType, School, Site
-from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate
+from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate, TypeUpdate
 from server.records import audit
 
 
@@ -59,6 +62,28 @@ def update_type(session: Session, *, row: HelicopterType, data: TypeCreate, acto
     audit.append(session, actor_id=actor_id, action="edit", entity="helicopter_type", entity_id=row.id,
                  before=before, after=type_read(row))
     return row
+
+
+def change_type(session: Session, *, row: HelicopterType, changes: TypeUpdate, actor_id: int) -> HelicopterType:
+    """Apply the fields sent to a type; a field sent as null clears it only where it is optional."""
+    merged = {key: value for key, value in type_read(row).items() if key != "id"}
+    merged |= changes.model_dump(exclude_unset=True)
+    try:
+        data = TypeCreate.model_validate(merged)
+    except ValidationError as error:
+        raise Invalid("; ".join(f"{'.'.join(map(str, e['loc'])) or 'type'}: {e['msg'].removeprefix('Value error, ')}"
+                                for e in error.errors())) from None
+    return update_type(session, row=row, data=data, actor_id=actor_id)
+
+
+def hv_entries(helicopter: HelicopterType, attempts) -> list[Entry]:
+    """Attempts with a recorded entry point, each marked inside or outside the type's avoid regions."""
+    polygons = [[tuple(p) for p in polygon] for polygon in helicopter.hv_avoid or []]
+    return [
+        Entry(sequence=a.sequence, kias=a.entry_kias, height_ft=a.entry_height_ft,
+              inside=in_avoid_region(a.entry_kias, a.entry_height_ft, polygons))
+        for a in attempts if a.entry_kias is not None and a.entry_height_ft is not None
+    ]
 
 
 def type_read(row: HelicopterType) -> dict:
