@@ -14,6 +14,7 @@ from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
 from server.people import api as people_api
 from server.people import routes as people_routes
+from server.security import SecurityHeaders
 from server.web import is_htmx, render
 
 
@@ -32,6 +33,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
 
+    app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
     for module in (people_api, fleet_api, logbook_api):

@@ -15,9 +15,14 @@ CSRF_FIELD = "csrf_token"
 UNSAFE_METHODS = {"POST", "PUT", "PATCH", "DELETE"}
 
 
+def secure_cookies(request: Request) -> bool:
+    """Secure cookies when configured, or whenever the request came over HTTPS."""
+    return request.app.state.settings.secure_cookies or request.url.scheme == "https"
+
+
 def cookie_name(request: Request) -> str:
     # The __Host- prefix pins the cookie to this host and path; browsers only accept it over HTTPS.
-    return "__Host-flarebook" if request.app.state.settings.secure_cookies else "flarebook"
+    return "__Host-flarebook" if secure_cookies(request) else "flarebook"
 
 
 def get_db(request: Request) -> Iterator[Session]:

@@ -4,7 +4,7 @@ from typing import Annotated
 from fastapi import APIRouter, Form, Request
 from fastapi.responses import RedirectResponse
 
-from server.deps import BrowserSession, DbSession, PageUser, check_csrf, cookie_name
+from server.deps import BrowserSession, DbSession, PageUser, check_csrf, cookie_name, secure_cookies
 from server.errors import Unauthorized
 from server.fleet import service as fleet
 from server.logbook import service as logbook
@@ -23,9 +23,8 @@ DEMO_PASSWORD = "flare-demo-2026"
 
 
 def _set_cookie(request: Request, response, value: str) -> None:
-    settings = request.app.state.settings
     response.set_cookie(cookie_name(request), value, httponly=True, samesite="lax",
-                        secure=settings.secure_cookies, path="/")
+                        secure=secure_cookies(request), path="/")
 
 
 @router.get("/signin")
