@@ -10,3 +10,12 @@ document.addEventListener("click", function (event) {
     input.dispatchEvent(new Event("input", { bubbles: true }));
   }
 });
+
+document.addEventListener("htmx:configRequest", function (event) {
+  // htmx names the element that carries hx-post (the conditions fieldset); the server needs the field
+  // that was typed in, so that only a pasted METAR refills the other fields.
+  var source = event.detail.triggeringEvent && event.detail.triggeringEvent.target;
+  if (source && source.name && source !== event.detail.elt) {
+    event.detail.headers["HX-Trigger-Name"] = source.name;
+  }
+});

@@ -124,8 +124,8 @@ async def conditions_preview(request: Request, db: DbSession, person: PageUser):
         context["readout"] = {"message": message or "Check the marked conditions.", "filled_from_metar": []}
     response = render(request, "logbook/_conditions_readout.html", context)
     if readout is not None and readout.filled_from_metar and request.headers.get("HX-Trigger-Name") == "metar":
-        filled = {k: getattr(readout, k) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}
-        filled["altimeter"] = round(readout.altimeter_hpa, 1) if readout.altimeter_hpa else values.get("altimeter_hpa")
+        filled = {k: _plain(getattr(readout, k)) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}
+        filled["altimeter"] = _plain(round(readout.altimeter_hpa, 1)) if readout.altimeter_hpa else values.get("altimeter_hpa")
         filled["altimeter_unit"] = "hPa"
         filled["takeoff_weight_lb"] = values.get("takeoff_weight_lb")
         fields = render(request, "logbook/_conditions_fields.html", {"values": filled, "errors": {}, "oob": True})
