@@ -16,6 +16,8 @@ from server.types import utcnow
 # Sign-in throttling: after this many refusals for one email in the window, refuse without checking.
 THROTTLE_LIMIT = 10
 THROTTLE_WINDOW = timedelta(minutes=15)
+# One address guessing across many emails is slowed too; set high, as a school may share one address.
+CLIENT_THROTTLE_LIMIT = 100
 MIN_PASSWORD_LENGTH = 8
 
 
@@ -97,9 +99,14 @@ def authenticate(session: Session, *, email: str, password: str, client: str = "
         select(func.count()).select_from(SignInFailure)
         .where(SignInFailure.email == email, SignInFailure.at >= since)
     )
+    from_client = session.scalar(
+        select(func.count()).select_from(SignInFailure)
+        .where(SignInFailure.client == client[:64], SignInFailure.at >= since)
+    ) if client else 0
     person = find_by_email(session, email)
     ok = (
         recent < THROTTLE_LIMIT
+        and from_client < CLIENT_THROTTLE_LIMIT
         and verify_password(person.password_hash if person else None, password)
         and person is not None
         and person.active
@@ -110,6 +117,8 @@ def authenticate(session: Session, *, email: str, password: str, client: str = "
                      entity_id=None, after={"email": email})
         if recent >= THROTTLE_LIMIT:
             raise Unauthorized("Too many failed sign-ins for this email. Wait 15 minutes and try again.")
+        if from_client >= CLIENT_THROTTLE_LIMIT:
+            raise Unauthorized("Too many failed sign-ins from this address. Wait 15 minutes and try again.")
         raise Unauthorized("That email and password do not match an active account.")
     audit.append(session, actor_id=person.id, action="sign_in", entity="person", entity_id=person.id)
     return person
