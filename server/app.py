@@ -6,6 +6,8 @@ from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
 from server.config import PROJECT_ROOT, Settings, get_settings
+from server.currency import api as currency_api
+from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
 from server.deps import SignInRequired
 from server.errors import FlarebookError
@@ -40,6 +42,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         app.include_router(module.router, prefix="/api/v1")
     for module in (people_routes, logbook_routes):
         app.include_router(module.router)
+    app.include_router(currency_api.router, prefix="/api/v1")
+    app.include_router(currency_api.feed_router)
+    app.include_router(currency_routes.router)
     _add_error_handlers(app)
     return app
 

@@ -1,0 +1,134 @@
+"""JSON API: currency rules, each person's currency, the readiness board, calendar links and feeds."""
+from datetime import date
+
+from fastapi import APIRouter, Query, Request, Response
+from pydantic import ValidationError
+
+from server.currency import board, feeds
+from server.currency import service as rules_service
+from server.currency.models import CalendarFeed, CurrencyRule
+from server.currency.schemas import (
+    BoardRead,
+    BoardRowRead,
+    CurrencyRead,
+    FeedCreate,
+    FeedRead,
+    PersonCurrencyRead,
+    RuleCreate,
+    RuleRead,
+    RuleUpdate,
+    Status,
+)
+from server.deps import ApiUser, DbSession, require_role
+from server.errors import Invalid, NotFound
+from server.people import service as people
+from server.people.models import Person
+from server.people.schemas import Role
+
+router = APIRouter(tags=["currency"])
+feed_router = APIRouter(include_in_schema=False)
+
+
+def rule_read(rule: CurrencyRule, type_names: dict[int, str]) -> RuleRead:
+    return RuleRead(id=rule.id, describe=rules_service.describe(rule, type_names)[0], **rules_service.rule_values(rule))
+
+
+def currency_read(row: board.Standing) -> CurrencyRead:
+    return CurrencyRead(rule_id=row.rule_id, rule_name=row.rule_name, status=row.status,
+                        current_until=row.current_until, qualifying_count=row.qualifying_count,
+                        needed=row.needed, remedy=row.remedy)
+
+
+def feed_read(db, feed: CalendarFeed, url: str | None = None) -> FeedRead:
+    person = db.get(Person, feed.person_id) if feed.person_id is not None else None
+    return FeedRead(id=feed.id, person_id=feed.person_id, person_name=person.name if person else None,
+                    created_at=feed.created_at.isoformat(), revoked=feed.revoked_at is not None, url=url)
+
+
+@router.get("/rules", response_model=list[RuleRead])
+def list_rules(db: DbSession, person: ApiUser):
+    names = rules_service.type_names(db)
+    return [rule_read(rule, names) for rule in rules_service.list_rules(db)]
+
+
+@router.post("/rules", response_model=RuleRead, status_code=201)
+def create_rule(data: RuleCreate, db: DbSession, person: ApiUser):
+    rule = rules_service.create_rule(db, actor=person, data=data)
+    return rule_read(rule, rules_service.type_names(db))
+
+
+@router.get("/rules/{rule_id}", response_model=RuleRead)
+def get_rule(rule_id: int, db: DbSession, person: ApiUser):
+    return rule_read(rules_service.get_rule(db, rule_id=rule_id), rules_service.type_names(db))
+
+
+@router.patch("/rules/{rule_id}", response_model=RuleRead)
+def update_rule(rule_id: int, data: RuleUpdate, db: DbSession, person: ApiUser):
+    rules_service.require_chief(person)
+    rule = rules_service.get_rule(db, rule_id=rule_id)
+    try:
+        merged = rules_service.merged_update(rule, data)
+    except ValidationError as error:
+        raise Invalid("; ".join(str(e["msg"]).removeprefix("Value error, ") for e in error.errors())) from None
+    rules_service.update_rule(db, actor=person, rule=rule, data=merged)
+    return rule_read(rule, rules_service.type_names(db))
+
+
+@router.delete("/rules/{rule_id}", status_code=204)
+def delete_rule(rule_id: int, db: DbSession, person: ApiUser):
+    rules_service.require_chief(person)
+    rules_service.delete_rule(db, actor=person, rule=rules_service.get_rule(db, rule_id=rule_id))
+    return Response(status_code=204)
+
+
+@router.get("/people/{person_id}/currency", response_model=PersonCurrencyRead)
+def person_currency(person_id: int, db: DbSession, person: ApiUser, as_of: date | None = None):
+    """The person's standing under every rule that applies to them: self, their instructors, chief pilots."""
+    if not people.can_view_pilot(db, viewer=person, pilot_id=person_id) or db.get(Person, person_id) is None:
+        raise NotFound("No such person.")
+    as_of = as_of or board.school_today(db)
+    rows = board.person_standings(db, person_id=person_id, as_of=as_of)
+    return PersonCurrencyRead(person_id=person_id, as_of=as_of, rules=[currency_read(r) for r in rows])
+
+
+@router.get("/currency", response_model=BoardRead)
+def readiness_board(db: DbSession, person: ApiUser, as_of: date | None = None, role: Role | None = None,
+                    rule_id: int | None = None, status: Status | None = None):
+    """Every active pilot against every rule that applies, soonest trouble first (chief pilots)."""
+    require_role(person, "chief_pilot", "admin")
+    as_of = as_of or board.school_today(db)
+    rows = board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status)
+    return BoardRead(as_of=as_of, rows=[
+        BoardRowRead(person_id=r.person_id, name=r.name, roles=list(r.roles), **currency_read(r).model_dump())
+        for r in rows
+    ])
+
+
+@router.get("/calendar-feeds", response_model=list[FeedRead])
+def list_feeds(db: DbSession, person: ApiUser):
+    return [feed_read(db, feed) for feed in feeds.list_feeds(db, owner=person)]
+
+
+@router.post("/calendar-feeds", response_model=FeedRead, status_code=201)
+def create_feed(data: FeedCreate, request: Request, db: DbSession, person: ApiUser):
+    """A secret calendar link; its address is shown in this answer only."""
+    feed, secret = feeds.create_feed(db, actor=person, person_id=data.person_id)
+    return feed_read(db, feed, url=str(request.url_for("currency_feed", secret=secret)))
+
+
+@router.delete("/calendar-feeds/{feed_id}", status_code=204)
+def revoke_feed(feed_id: int, db: DbSession, person: ApiUser):
+    feeds.revoke_feed(db, actor=person, feed_id=feed_id)
+    return Response(status_code=204)
+
+
+@feed_router.get("/calendar/{secret}.ics", name="currency_feed")
+def currency_feed(secret: str, db: DbSession, as_of: date | None = Query(default=None)):
+    """The feed itself: the secret in the address is the credential, so no session is needed."""
+    feed = feeds.feed_for_secret(db, secret)
+    as_of = as_of or board.school_today(db)
+    rows = feeds.feed_standings(db, feed, as_of=as_of)
+    name = "Currency due dates" + ("" if feed.person_id is None else f": {db.get(Person, feed.person_id).name}")
+    body = feeds.calendar_bytes(rows, name=name, made_at=feeds.utcnow())
+    return Response(body, media_type="text/calendar; charset=utf-8",
+                    headers={"Cache-Control": "no-store", "Content-Disposition": 'inline; filename="currency.ics"'})

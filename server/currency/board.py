@@ -1,0 +1,125 @@
+"""The readiness board and each person's own currency: who stands where under which rule."""
+from collections.abc import Sequence
+from dataclasses import dataclass
+from datetime import date, datetime, timedelta
+from zoneinfo import ZoneInfo
+
+from sqlalchemy import select
+from sqlalchemy.orm import Session
+
+from server.compute.currency import STATUS_RANK, format_date
+from server.currency import evaluation
+from server.currency import service as rules_service
+from server.currency.models import CurrencyRule
+from server.fleet import service as fleet
+from server.people.models import ROLE_LABELS, Person, PersonRole
+
+STATUS_LABELS = {"current": "Current", "due_soon": "Due soon", "lapsed": "Lapsed", "never": "Never done"}
+# Our own shapes, so a status never rests on colour alone.
+STATUS_SHAPES = {"current": "●", "due_soon": "◐", "lapsed": "✕", "never": "○"}
+CSV_HEADER = ("Pilot", "Roles", "Rule", "Status", "Date", "Qualifying in window", "Needed", "What to do")
+
+
+@dataclass(frozen=True)
+class Standing:
+    """One person under one rule on the as-of date: a board row, an API row, a line on a home page."""
+
+    person_id: int
+    name: str
+    roles: tuple[str, ...]
+    rule_id: int
+    rule_name: str
+    status: str
+    current_until: date | None
+    qualifying_count: int
+    needed: int
+    remedy: str
+
+    @property
+    def label(self) -> str:
+        return STATUS_LABELS[self.status]
+
+    @property
+    def shape(self) -> str:
+        return STATUS_SHAPES[self.status]
+
+    @property
+    def role_words(self) -> str:
+        return ", ".join(ROLE_LABELS.get(role, role) for role in self.roles)
+
+    @property
+    def date_words(self) -> str:
+        """The date that matters, in words: until when current, or since when lapsed."""
+        if self.current_until is None:
+            return ""
+        if self.status == "lapsed":
+            return f"since {format_date(self.current_until + timedelta(days=1))}"
+        return f"until {format_date(self.current_until)}"
+
+    def sort_key(self) -> tuple:
+        """Soonest trouble first: never done, lapsed, due soon, current; earlier dates first within each."""
+        return (STATUS_RANK[self.status], self.current_until or date.max, self.name.casefold(), self.rule_name)
+
+    def csv_row(self) -> tuple:
+        return (self.name, self.role_words, self.rule_name, self.label, self.date_words,
+                self.qualifying_count, self.needed, self.remedy)
+
+
+def school_today(session: Session) -> date:
+    """Today's date at the school: currency counts the school's local dates."""
+    return datetime.now(ZoneInfo(fleet.school(session).timezone)).date()
+
+
+def _people(session: Session, person_ids: Sequence[int] | None) -> list[tuple[int, str, tuple[str, ...]]]:
+    query = select(Person.id, Person.name).where(Person.active).order_by(Person.name, Person.id)
+    role_query = select(PersonRole.person_id, PersonRole.role).order_by(PersonRole.role)
+    if person_ids is not None:
+        query = query.where(Person.id.in_(list(person_ids)))
+        role_query = role_query.where(PersonRole.person_id.in_(list(person_ids)))
+    roles: dict[int, list[str]] = {}
+    for person_id, role in session.execute(role_query):
+        roles.setdefault(person_id, []).append(role)
+    return [(pid, name, tuple(roles.get(pid, ()))) for pid, name in session.execute(query)]
+
+
+def standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | None = None,
+              person_ids: Sequence[int] | None = None) -> list[Standing]:
+    """Every active person against every rule that applies to them, soonest trouble first."""
+    rules = list(rules_service.list_rules(session) if rules is None else rules)
+    people = _people(session, person_ids)
+    pairs = [(person, rule) for person in people for rule in rules
+             if rules_service.applies_to(rule, person_id=person[0], roles=list(person[2]))]
+    if not pairs:
+        return []
+    wanted_rules = [rule for rule in rules if any(r is rule for _, r in pairs)]
+    found = evaluation.summaries(session, rules=wanted_rules, as_of=as_of,
+                                 pilot_ids=None if person_ids is None else [p[0] for p in people])
+    types = rules_service.type_names(session)
+    words = {rule.id: rules_service.describe(rule, types) for rule in wanted_rules}
+    out = []
+    for (person_id, name, roles), rule in pairs:
+        summary = found.get((person_id, rule.id), evaluation.NEVER)
+        status = evaluation.status_for(rule, summary, as_of=as_of, words=words[rule.id])
+        out.append(Standing(person_id=person_id, name=name, roles=roles, rule_id=rule.id, rule_name=rule.name,
+                            status=status.status, current_until=status.current_until,
+                            qualifying_count=status.qualifying_count, needed=status.needed, remedy=status.remedy))
+    out.sort(key=Standing.sort_key)
+    return out
+
+
+def board(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,
+          status: str | None = None) -> list[Standing]:
+    """The readiness board with its filters; one rule evaluates only that rule."""
+    rules = rules_service.list_rules(session)
+    if rule_id is not None:
+        rules = [rule for rule in rules if rule.id == rule_id]
+    rows = standings(session, as_of=as_of, rules=rules)
+    if role:
+        rows = [row for row in rows if role in row.roles]
+    if status:
+        rows = [row for row in rows if row.status == status]
+    return rows
+
+
+def person_standings(session: Session, *, person_id: int, as_of: date) -> list[Standing]:
+    return standings(session, as_of=as_of, person_ids=[person_id])

@@ -1,0 +1,138 @@
+"""Currency evaluated set-wise in SQL: one statement for every pilot and every rule (DESIGN 4.6).
+
+The statement reads each qualifying attempt once, counts per pilot and day how many qualify under each
+rule, then uses window functions over those days to find, per pilot and rule, the newest qualifying
+dates (as many as the rule's minimum count), the count inside the rule's window and whether any ever
+qualified. The pure `status_from_summary` turns each summary into a status, so the SQL path and
+`evaluate_currency` share one definition of currency.
+"""
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from datetime import date
+
+from sqlalchemy import and_, case, exists, false, func, not_, or_, select, true
+from sqlalchemy.orm import Session, aliased
+
+from server.compute.currency import CurrencyStatus, status_from_summary, window_start
+from server.currency.models import CurrencyRule
+from server.fleet.models import Aircraft
+from server.logbook.models import Attempt, Sortie
+
+
+@dataclass(frozen=True)
+class Summary:
+    """What status_from_summary needs for one pilot and one rule."""
+
+    latest_dates_desc: tuple[date, ...]
+    count_in_window: int
+    ever: bool
+
+
+NEVER = Summary(latest_dates_desc=(), count_in_window=0, ever=False)
+
+
+def _instructed():
+    """An instructor aboard who is not the pilot being checked."""
+    return and_(Sortie.instructor_id.is_not(None), Sortie.instructor_id != Attempt.pilot_id)
+
+
+def counting_attempts_filter(as_of: date):
+    """Attempts that can count at all: the latest signed version of their sortie, not taken over, flown by as_of.
+
+    A signed sortie stops counting once a newer version of it is signed (only the newest version of a
+    record can be a draft, so one step along the chain is enough).
+    """
+    newer = aliased(Sortie)
+    return and_(
+        Sortie.state == "signed",
+        Attempt.takeover == false(),
+        Attempt.flown_on <= as_of,
+        ~exists().where(newer.supersedes_id == Sortie.id, newer.state == "signed"),
+    )
+
+
+def rule_condition(rule: CurrencyRule):
+    """What one attempt must be to qualify under the rule (empty lists and None mean any)."""
+    conditions = [true()]
+    if rule.maneuvers:
+        conditions.append(Attempt.maneuver.in_(rule.maneuvers))
+    if rule.terminations:
+        conditions.append(Attempt.termination.in_(rule.terminations))
+    if rule.type_ids:
+        conditions.append(Aircraft.type_id.in_(rule.type_ids))
+    if rule.with_instructor is not None:
+        conditions.append(_instructed() if rule.with_instructor else not_(_instructed()))
+    if rule.min_score is not None:
+        conditions.append(Attempt.score >= rule.min_score)
+    if rule.require_satisfactory:
+        conditions.append(Attempt.satisfactory == true())
+    return and_(*conditions)
+
+
+def base_from(query):
+    """Attempts joined to their sortie and aircraft, as every currency query reads them."""
+    return query.select_from(Attempt).join(Sortie, Sortie.id == Attempt.sortie_id).join(
+        Aircraft, Aircraft.id == Sortie.aircraft_id)
+
+
+def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids: Iterable[int] | None = None):
+    """The one statement: rows of (pilot, day, per-rule count, running count, window count, total)."""
+    per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
+    days = base_from(select(Attempt.pilot_id, Attempt.flown_on, *per_day)).where(counting_attempts_filter(as_of))
+    if pilot_ids is not None:
+        days = days.where(Attempt.pilot_id.in_(list(pilot_ids)))
+    days = days.group_by(Attempt.pilot_id, Attempt.flown_on).subquery("days")
+
+    newest_first = {"partition_by": days.c.pilot_id, "order_by": days.c.flown_on.desc()}
+    columns = [days.c.pilot_id, days.c.flown_on]
+    for i, rule in enumerate(rules):
+        n = days.c[f"n{i}"]
+        start = window_start(as_of, window_days=rule.window_days, window_months=rule.window_months)
+        columns += [
+            n,
+            func.sum(n).over(**newest_first, rows=(None, 0)).label(f"run{i}"),
+            func.sum(case((days.c.flown_on >= start, n), else_=0)).over(**newest_first, rows=(None, None))
+            .label(f"win{i}"),
+            func.sum(n).over(**newest_first, rows=(None, None)).label(f"tot{i}"),
+        ]
+    ranked = select(*columns).subquery("ranked")
+    # Keep only the days that hold one of the min_count newest qualifying attempts of some rule.
+    among_newest = [
+        and_(ranked.c[f"n{i}"] > 0, ranked.c[f"run{i}"] - ranked.c[f"n{i}"] < rule.min_count)
+        for i, rule in enumerate(rules)
+    ]
+    return select(ranked).where(or_(false(), *among_newest)).order_by(ranked.c.pilot_id, ranked.c.flown_on.desc())
+
+
+def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
+              pilot_ids: Iterable[int] | None = None) -> dict[tuple[int, int], Summary]:
+    """Per (pilot_id, rule_id) with any qualifying attempt by as_of; a missing pair means never done."""
+    if not rules:
+        return {}
+    out: dict[tuple[int, int], Summary] = {}
+    latest: dict[tuple[int, int], list[date]] = {}
+    for row in session.execute(summaries_statement(rules, as_of=as_of, pilot_ids=pilot_ids)).mappings():
+        for i, rule in enumerate(rules):
+            total = row[f"tot{i}"] or 0
+            if not total:
+                continue
+            key = (row["pilot_id"], rule.id)
+            dates = latest.setdefault(key, [])
+            n, run = row[f"n{i}"] or 0, row[f"run{i}"] or 0
+            if n and run - n < rule.min_count:
+                # Several attempts on one day each count: repeat the date as often as it is needed.
+                dates.extend([row["flown_on"]] * min(n, rule.min_count - (run - n)))
+            if key not in out:
+                out[key] = Summary(latest_dates_desc=(), count_in_window=int(row[f"win{i}"] or 0), ever=True)
+    return {key: Summary(latest_dates_desc=tuple(latest.get(key, ())), count_in_window=summary.count_in_window,
+                         ever=True) for key, summary in out.items()}
+
+
+def status_for(rule: CurrencyRule, summary: Summary, *, as_of: date, words: tuple[str, str]) -> CurrencyStatus:
+    """The one way from a summary to a status, shared with evaluate_currency."""
+    return status_from_summary(
+        as_of=as_of, latest_dates_desc=summary.latest_dates_desc, count_in_window=summary.count_in_window,
+        ever=summary.ever, window_days=rule.window_days, window_months=rule.window_months,
+        min_count=rule.min_count, warn_days=rule.warn_days, describe=words[0], describe_one=words[1],
+    )
+
