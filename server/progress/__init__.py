@@ -1,0 +1,1 @@
+"""Trends, proficiency and the progress file."""

@@ -1,0 +1,191 @@
+"""The progress file: program position, proficiency per kind, trend charts, recent attempts, what is next."""
+from dataclasses import dataclass, field
+from datetime import date
+
+from sqlalchemy.orm import Session
+
+from server.compute.trends import ewma_chart
+from server.people.models import Person
+from server.progress import service
+from server.progress.charts import ChartData, describe, trend_chart_svg
+from server.progress.service import AttemptPoint, KindTrend, MetricTrend
+from server.training import programs
+from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+
+CHART_WINDOW = 50  # attempts drawn per chart; the EWMA and limits still use every attempt before them
+RECENT_ATTEMPTS = 12
+PAGE_METRICS = ("touchdown_speed_kt", "flare_height_dev_ft")
+
+STATE_WORDS = {
+    "at_standard": "At standard",
+    "practising": "Practising",
+    "rusty": "Rusty",
+    "not_started": "Not started",
+}
+# Our own shapes, so a state never rests on colour alone.
+STATE_SHAPES = {"at_standard": "★", "practising": "◐", "rusty": "▽", "not_started": "○"}
+METRIC_WORDS = {
+    "touchdown_speed_kt": ("Touchdown speed", "kt"),
+    "flare_height_dev_ft": ("Flare height outside the band", "ft"),
+    "point_error_ft": ("Touchdown point", "ft"),
+    "nr_dev_pct": ("Rotor RPM outside the limits", "%"),
+    "score": ("Score", "points"),
+}
+
+
+def kind_label(maneuver: str, termination: str) -> str:
+    return f"{MANEUVER_LABELS[maneuver]}, {TERMINATION_LABELS[termination].lower()}"
+
+
+def kind_key(maneuver: str, termination: str) -> str:
+    return f"{maneuver}.{termination}"
+
+
+def direction_words(name: str, metric: MetricTrend) -> str:
+    """One metric's direction in plain words, with its rate where it has one."""
+    quantity, unit = METRIC_WORDS[name]
+    if metric.direction == "too_few":
+        return f"{quantity}: too few attempts to say (5 needed)"
+    rate = ""
+    if metric.slope_per_attempt is not None and metric.direction != "steady":
+        rate = f" ({abs(metric.slope_per_attempt):.2f} {unit} per attempt)"
+    words = {"improving": "improving", "steady": "steady", "degrading": "getting worse"}[metric.direction]
+    return f"{quantity}: {words}{rate}"
+
+
+@dataclass
+class KindView:
+    """One maneuver and termination as the page shows it."""
+
+    trend: KindTrend
+    label: str
+    key: str
+    state_words: str
+    state_shape: str
+    directions: list[str]
+    forecast_words: str
+
+
+@dataclass
+class ChartView:
+    svg: str
+    summary: str
+
+
+@dataclass
+class ProgressFile:
+    pilot: Person
+    as_of: date
+    program: programs.ProgramProgress | None
+    kinds: list[KindView]
+    selected: KindView | None
+    charts: list[ChartView]
+    recent: list[AttemptPoint]
+    needed_next: list[str] = field(default_factory=list)
+    total_attempts: int = 0
+    chart_window: int = CHART_WINDOW
+
+
+def _forecast_words(trend: KindTrend) -> str:
+    if trend.state == "not_started":
+        return "Not flown yet."
+    if trend.forecast_attempts == 0:
+        return "At standard now."
+    if trend.forecast_attempts is None:
+        return "Not yet rising towards the standard: talk it through with your instructor."
+    n = trend.forecast_attempts
+    plural = "s" if n != 1 else ""
+    if trend.trend_score is not None and trend.trend_score >= trend.standard.threshold:
+        return f"{n} more attempt{plural} in a row inside every tolerance."
+    return f"About {n} more attempt{plural} at the current rate."
+
+
+def kind_view(trend: KindTrend) -> KindView:
+    return KindView(
+        trend=trend, label=kind_label(trend.maneuver, trend.termination),
+        key=kind_key(trend.maneuver, trend.termination), state_words=STATE_WORDS[trend.state],
+        state_shape=STATE_SHAPES[trend.state],
+        directions=[direction_words(name, trend.metrics[name]) for name in PAGE_METRICS if name in trend.metrics],
+        forecast_words=_forecast_words(trend),
+    )
+
+
+def _window(items: list) -> list:
+    return items[-CHART_WINDOW:]
+
+
+def touchdown_chart(view: KindView) -> ChartData:
+    """Touchdown speed with the maximum as the band's top, from the trends' own EWMA chart."""
+    metric = view.trend.metrics["touchdown_speed_kt"]
+    by_id = {p.attempt_id: p for p in view.trend.points}
+    tolerances = [by_id[i].tolerances["touchdown_speed_kt"] for i in metric.attempt_ids]
+    return ChartData(
+        chart_id=f"chart-touchdown-{view.key.replace('.', '-')}",
+        title=f"Touchdown speed, {view.label.lower()}", quantity="Touchdown speed", unit="kt",
+        values=_window(metric.values), dates=_window(metric.flown_on),
+        band_low=[0.0 if t is not None else None for t in _window(tolerances)], band_high=_window(tolerances),
+        ewma=_window(metric.ewma), ucl=_window(metric.ucl), lcl=_window(metric.lcl),
+    )
+
+
+def flare_chart(view: KindView) -> ChartData:
+    """Flare height AGL against each attempt's expected band (it moves with density altitude and weight)."""
+    recorded = [p for p in view.trend.points if p.flare_height_ft is not None]
+    values = [p.flare_height_ft for p in recorded]
+    chart = ewma_chart(values) if values else None
+    shown = _window(recorded)
+    return ChartData(
+        chart_id=f"chart-flare-{view.key.replace('.', '-')}",
+        title=f"Flare height, {view.label.lower()}", quantity="Flare height", unit="ft AGL",
+        values=_window(values), dates=[p.flown_on for p in shown],
+        band_low=[p.flare_band_ft[0] if p.flare_band_ft else None for p in shown],
+        band_high=[p.flare_band_ft[1] if p.flare_band_ft else None for p in shown],
+        ewma=_window(chart.ewma) if chart else [], ucl=_window(chart.ucl) if chart else [],
+        lcl=_window(chart.lcl) if chart else [],
+    )
+
+
+def _needed_next(program: programs.ProgramProgress | None, kinds: list[KindView]) -> list[str]:
+    """What the student does next, in the syllabus's words."""
+    needed = []
+    if program is not None:
+        stage, lesson = program.current_stage, program.current_lesson
+        if stage is None:
+            needed.append(f"Every stage of {program.program.name} is passed.")
+        elif lesson is None:
+            needed.append(f"{stage.stage.name}: every lesson is confirmed; the stage check is next, with a chief "
+                          "pilot or a check instructor other than the usual instructor.")
+        elif lesson.attempts_met:
+            needed.append(f"{lesson.lesson.name}: the signed records meet it; an instructor confirms it next.")
+        else:
+            for requirement in lesson.requirements:
+                if not requirement.met:
+                    needed.append(f"{lesson.lesson.name}: {requirement.words}.")
+    for view in kinds:
+        if view.trend.state == "rusty":
+            needed.append(f"{view.label}: rusty; fly it again with an instructor until it is back at standard.")
+    return needed
+
+
+def build(session: Session, *, viewer: Person, pilot_id: int, selected_key: str | None = None,
+          as_of: date | None = None) -> ProgressFile:
+    """Everything the progress file shows, from one read of the pilot's counted attempts."""
+    pilot = service.viewable_pilot(session, viewer=viewer, pilot_id=pilot_id)
+    as_of = as_of or service.local_today(session)
+    points = service.read_points(session, pilot_id=pilot_id)
+    kinds = [kind_view(t) for t in service.all_trends(session, pilot_id=pilot_id, as_of=as_of, points=points,
+                                                      metrics=PAGE_METRICS)]
+    enrolment = programs.active_enrolment(session, student_id=pilot_id)
+    program = programs.program_progress(session, enrolment=enrolment, points=points) if enrolment else None
+    selected = next((k for k in kinds if k.key == selected_key), None)
+    if selected is None and kinds:
+        selected = max(kinds, key=lambda k: (k.trend.last_flown_on, k.trend.attempts))
+    charts = []
+    if selected is not None:
+        for data in (touchdown_chart(selected), flare_chart(selected)):
+            charts.append(ChartView(svg=trend_chart_svg(data), summary=describe(data)))
+    return ProgressFile(
+        pilot=pilot, as_of=as_of, program=program, kinds=kinds, selected=selected, charts=charts,
+        recent=list(reversed(points[-RECENT_ATTEMPTS:])), needed_next=_needed_next(program, kinds),
+        total_attempts=len(points),
+    )

@@ -1,0 +1,41 @@
+"""Pages: the progress file, and the list of files a person may open."""
+from fastapi import APIRouter, Request
+from fastapi.responses import RedirectResponse
+
+from server.deps import DbSession, PageUser
+from server.people import service as people
+from server.people.models import Person
+from server.progress import file as progress_file
+from server.training import programs
+from server.web import render
+
+router = APIRouter(include_in_schema=False)
+
+
+@router.get("/progress", name="progress_index")
+def progress_index(request: Request, db: DbSession, person: PageUser):
+    """A student goes straight to their own file; instructors and chief pilots pick a pilot."""
+    pilots = [p for p in people.visible_people(db, viewer=person)
+              if p.active and people.can_view_pilot(db, viewer=person, pilot_id=p.id)]
+    if len(pilots) <= 1:
+        return RedirectResponse(request.url_for("progress_file", pilot_id=person.id), status_code=303)
+    return render(request, "progress/progress_index.html", {"person": person, "pilots": pilots})
+
+
+def file_context(db, person: Person, pilot_id: int, kind: str | None = None) -> dict:
+    """What the progress file template needs, including which sign-offs the viewer may give."""
+    built = progress_file.build(db, viewer=person, pilot_id=pilot_id, selected_key=kind)
+    enrolment = built.program.enrolment if built.program else None
+    return {
+        "person": person, "file": built,
+        "usual_instructor": db.get(Person, enrolment.instructor_id) if enrolment and enrolment.instructor_id else None,
+        "can_confirm": person.has_role("instructor", "chief_pilot") and person.id != pilot_id,
+        "can_check": enrolment is not None and programs.may_check(person, enrolment),
+    }
+
+
+@router.get("/people/{pilot_id}/progress", name="progress_file")
+def progress_page(pilot_id: int, request: Request, db: DbSession, person: PageUser, kind: str | None = None):
+    """The progress file; with htmx and a kind, only that kind's charts."""
+    return render(request, "progress/progress_file.html", file_context(db, person, pilot_id, kind),
+                  fragment="progress/_charts.html")

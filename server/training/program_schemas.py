@@ -1,0 +1,139 @@
+"""Shapes of programs (syllabi), enrolments, lesson confirmations and stage checks."""
+from datetime import date, datetime
+
+from pydantic import BaseModel, ConfigDict, Field
+
+from server.logbook.schemas import Maneuver, Termination
+
+
+class RequirementWrite(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    id: int | None = Field(default=None, description="keep an existing requirement; leave out for a new one")
+    maneuver: Maneuver
+    termination: Termination
+    standard_id: int | None = Field(default=None, description="the standard the attempts must meet; none: as scored")
+    attempts_needed: int = Field(default=3, ge=1, le=500)
+
+
+class LessonWrite(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    id: int | None = None
+    name: str = Field(min_length=1, max_length=120)
+    requirements: list[RequirementWrite] = Field(default_factory=list, max_length=20)
+
+
+class StageWrite(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    id: int | None = None
+    name: str = Field(min_length=1, max_length=120)
+    lessons: list[LessonWrite] = Field(default_factory=list, max_length=50)
+
+
+class ProgramWrite(BaseModel):
+    """A whole syllabus: stages in order, their lessons in order, and what each lesson asks."""
+
+    model_config = ConfigDict(extra="forbid")
+    name: str = Field(min_length=1, max_length=120)
+    level: str = Field(default="private", min_length=1, max_length=40,
+                       description="the program level that picks the standards, e.g. private or recurrent")
+    description: str = Field(default="", max_length=4000)
+    stages: list[StageWrite] = Field(default_factory=list, max_length=30)
+
+
+class RequirementRead(BaseModel):
+    id: int
+    maneuver: str
+    termination: str
+    standard_id: int | None
+    attempts_needed: int
+
+
+class LessonRead(BaseModel):
+    id: int
+    position: int
+    name: str
+    requirements: list[RequirementRead]
+
+
+class StageRead(BaseModel):
+    id: int
+    position: int
+    name: str
+    lessons: list[LessonRead]
+
+
+class ProgramRead(BaseModel):
+    id: int
+    name: str
+    level: str
+    description: str
+    stages: list[StageRead]
+
+
+class EnrolmentCreate(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    student_id: int
+    instructor_id: int | None = Field(default=None, description="the student's usual instructor")
+    started_on: date
+
+
+class EnrolmentRead(BaseModel):
+    id: int
+    program_id: int
+    student_id: int
+    instructor_id: int | None
+    started_on: date
+    active: bool
+
+
+class RequirementProgressRead(BaseModel):
+    requirement_id: int
+    maneuver: str
+    termination: str
+    attempts_needed: int
+    attempts_counted: int
+    met: bool
+
+
+class LessonProgressRead(BaseModel):
+    lesson_id: int
+    name: str
+    requirements: list[RequirementProgressRead]
+    attempts_met: bool = Field(description="every requirement met by counted attempts")
+    confirmed_by_id: int | None
+    confirmed_at: datetime | None
+
+
+class StageProgressRead(BaseModel):
+    stage_id: int
+    name: str
+    lessons: list[LessonProgressRead]
+    check_passed: bool
+    checked_by_id: int | None
+    checked_at: datetime | None
+
+
+class ProgressRead(BaseModel):
+    enrolment: EnrolmentRead
+    program_name: str
+    stages: list[StageProgressRead]
+    current_stage_id: int | None
+    current_lesson_id: int | None
+
+
+class StageCheckCreate(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    stage_id: int
+    passed: bool
+    remarks: str = Field(default="", max_length=4000)
+    password: str = Field(min_length=1, max_length=1000, description="the checker's password, re-entered to sign")
+
+
+class StageCheckRead(BaseModel):
+    id: int
+    enrolment_id: int
+    stage_id: int
+    checker_id: int
+    passed: bool
+    remarks: str
+    signed_at: datetime

@@ -1,0 +1,421 @@
+"""Programs (syllabi): stages, lessons and their requirements; enrolment; lesson sign-off; stage checks."""
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from datetime import date
+
+from sqlalchemy import select
+from sqlalchemy.orm import Session
+
+from server.errors import Conflict, Forbidden, Invalid, NotFound
+from server.people import service as people
+from server.people.models import Person
+from server.people.security import verify_password
+from server.progress.service import AttemptPoint, read_points
+from server.records import audit
+from server.training.models import (
+    MANEUVER_LABELS,
+    TERMINATION_LABELS,
+    Enrolment,
+    Lesson,
+    LessonCompletion,
+    LessonRequirement,
+    Program,
+    Stage,
+    StageCheck,
+    Standard,
+)
+from server.training.program_schemas import EnrolmentCreate, LessonWrite, ProgramWrite, StageWrite
+
+SETUP_ROLES = ("chief_pilot", "admin")
+
+
+# ---- the syllabus ------------------------------------------------------------------------------
+
+def list_programs(session: Session) -> list[Program]:
+    return list(session.scalars(select(Program).order_by(Program.name)))
+
+
+def get_program(session: Session, program_id: int) -> Program:
+    program = session.get(Program, program_id)
+    if program is None:
+        raise NotFound("No such program.")
+    return program
+
+
+def program_record(program: Program) -> dict:
+    """The syllabus as plain data, for the API and the audit chain."""
+    return {
+        "id": program.id, "name": program.name, "level": program.level, "description": program.description,
+        "stages": [
+            {"id": stage.id, "position": stage.position, "name": stage.name, "lessons": [
+                {"id": lesson.id, "position": lesson.position, "name": lesson.name, "requirements": [
+                    {"id": r.id, "maneuver": r.maneuver, "termination": r.termination,
+                     "standard_id": r.standard_id, "attempts_needed": r.attempts_needed}
+                    for r in lesson.requirements
+                ]}
+                for lesson in stage.lessons
+            ]}
+            for stage in program.stages
+        ],
+    }
+
+
+def _require_setup(actor: Person) -> None:
+    if not actor.has_role(*SETUP_ROLES):
+        raise Forbidden("Only a chief pilot or an administrator sets up programs.")
+
+
+def _check_names_and_standards(session: Session, data: ProgramWrite, *, program_id: int | None) -> None:
+    clash = session.scalar(select(Program.id).where(Program.name == data.name.strip()))
+    if clash is not None and clash != program_id:
+        raise Conflict(f"A program called {data.name.strip()} exists already.")
+    standard_ids = {r.standard_id for s in data.stages for lesson in s.lessons for r in lesson.requirements
+                    if r.standard_id is not None}
+    known = set(session.scalars(select(Standard.id).where(Standard.id.in_(standard_ids)))) if standard_ids else set()
+    if standard_ids - known:
+        missing = ", ".join(str(i) for i in sorted(standard_ids - known))
+        raise Invalid(f"standard_id {missing} does not name a standard.")
+
+
+def create_program(session: Session, *, actor: Person, data: ProgramWrite) -> Program:
+    """A new syllabus with its stages, lessons and requirements."""
+    _require_setup(actor)
+    _check_names_and_standards(session, data, program_id=None)
+    program = Program(name=data.name.strip(), level=data.level.strip(), description=data.description)
+    program.stages = [_new_stage(position, stage) for position, stage in enumerate(data.stages, start=1)]
+    session.add(program)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="create", entity="program", entity_id=program.id,
+                 after=program_record(program))
+    return program
+
+
+def _new_stage(position: int, data: StageWrite) -> Stage:
+    if data.id is not None:
+        raise Invalid(f"Stage id {data.id} belongs to no stage of this program.")
+    stage = Stage(position=position, name=data.name.strip())
+    stage.lessons = [_new_lesson(p, lesson) for p, lesson in enumerate(data.lessons, start=1)]
+    return stage
+
+
+def _new_lesson(position: int, data: LessonWrite) -> Lesson:
+    if data.id is not None:
+        raise Invalid(f"Lesson id {data.id} belongs to no lesson of this stage.")
+    lesson = Lesson(position=position, name=data.name.strip())
+    lesson.requirements = [
+        LessonRequirement(maneuver=r.maneuver, termination=r.termination, standard_id=r.standard_id,
+                          attempts_needed=r.attempts_needed)
+        for r in data.requirements
+    ]
+    return lesson
+
+
+def update_program(session: Session, *, actor: Person, program: Program, data: ProgramWrite) -> Program:
+    """Replace the syllabus: items with an id are kept and edited, new ones added, missing ones removed.
+
+    A lesson someone has been signed off on, or a stage someone was checked on, stays: removing it
+    would erase a training record.
+    """
+    _require_setup(actor)
+    _check_names_and_standards(session, data, program_id=program.id)
+    before = program_record(program)
+    program.name, program.level, program.description = data.name.strip(), data.level.strip(), data.description
+    stages_by_id = {s.id: s for s in program.stages}
+    kept_stages = []
+    for position, stage_data in enumerate(data.stages, start=1):
+        if stage_data.id is None:
+            kept_stages.append(_new_stage(position, stage_data))
+            continue
+        stage = stages_by_id.pop(stage_data.id, None)
+        if stage is None:
+            raise Invalid(f"Stage id {stage_data.id} belongs to no stage of this program.")
+        stage.position, stage.name = position, stage_data.name.strip()
+        _update_lessons(session, stage, stage_data.lessons)
+        kept_stages.append(stage)
+    for removed in stages_by_id.values():
+        if session.scalar(select(StageCheck.id).where(StageCheck.stage_id == removed.id).limit(1)):
+            raise Conflict(f"Stage “{removed.name}” has stage checks on record and cannot be removed.")
+        for lesson in removed.lessons:
+            _refuse_if_signed_off(session, lesson)
+    program.stages = kept_stages
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="edit", entity="program", entity_id=program.id,
+                 before=before, after=program_record(program))
+    return program
+
+
+def _update_lessons(session: Session, stage: Stage, lessons: Sequence[LessonWrite]) -> None:
+    by_id = {lesson.id: lesson for lesson in stage.lessons}
+    kept = []
+    for position, data in enumerate(lessons, start=1):
+        if data.id is None:
+            kept.append(_new_lesson(position, data))
+            continue
+        lesson = by_id.pop(data.id, None)
+        if lesson is None:
+            raise Invalid(f"Lesson id {data.id} belongs to no lesson of stage “{stage.name}”.")
+        lesson.position, lesson.name = position, data.name.strip()
+        existing = {r.id: r for r in lesson.requirements}
+        requirements = []
+        for r in data.requirements:
+            row = existing.get(r.id) if r.id is not None else None
+            if r.id is not None and row is None:
+                raise Invalid(f"Requirement id {r.id} belongs to no requirement of lesson “{lesson.name}”.")
+            row = row or LessonRequirement()
+            row.maneuver, row.termination = r.maneuver, r.termination
+            row.standard_id, row.attempts_needed = r.standard_id, r.attempts_needed
+            requirements.append(row)
+        lesson.requirements = requirements
+        kept.append(lesson)
+    for removed in by_id.values():
+        _refuse_if_signed_off(session, removed)
+    stage.lessons = kept
+
+
+def _refuse_if_signed_off(session: Session, lesson: Lesson) -> None:
+    if session.scalar(select(LessonCompletion.id).where(LessonCompletion.lesson_id == lesson.id).limit(1)):
+        raise Conflict(f"Lesson “{lesson.name}” has been signed off for a student and cannot be removed.")
+
+
+# ---- enrolment ---------------------------------------------------------------------------------
+
+def enrol(session: Session, *, actor: Person, program: Program, data: EnrolmentCreate) -> Enrolment:
+    """Enrol a student with their usual instructor; an earlier active enrolment ends."""
+    _require_setup(actor)
+    student = session.get(Person, data.student_id)
+    if student is None or not student.active:
+        raise Invalid("student_id does not name an active person.")
+    if data.instructor_id is not None:
+        instructor = session.get(Person, data.instructor_id)
+        if instructor is None or not instructor.has_role("instructor"):
+            raise Invalid("instructor_id does not name an instructor.")
+        if instructor.id == student.id:
+            raise Invalid("A student cannot be their own usual instructor.")
+    for earlier in session.scalars(select(Enrolment).where(Enrolment.student_id == student.id,
+                                                           Enrolment.active.is_(True))):
+        earlier.active = False
+    enrolment = Enrolment(program_id=program.id, student_id=student.id, instructor_id=data.instructor_id,
+                          started_on=data.started_on, active=True)
+    session.add(enrolment)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="create", entity="enrolment", entity_id=enrolment.id,
+                 after={"program_id": program.id, "student_id": student.id, "instructor_id": data.instructor_id,
+                        "started_on": data.started_on.isoformat()})
+    return enrolment
+
+
+def active_enrolment(session: Session, *, student_id: int) -> Enrolment | None:
+    return session.scalar(select(Enrolment).where(Enrolment.student_id == student_id, Enrolment.active.is_(True))
+                          .order_by(Enrolment.started_on.desc(), Enrolment.id.desc()).limit(1))
+
+
+def get_enrolment(session: Session, *, enrolment_id: int, viewer: Person) -> Enrolment:
+    """An enrolment the viewer may see (the student, their instructors, chief pilots); 404 otherwise."""
+    enrolment = session.get(Enrolment, enrolment_id)
+    if enrolment is None or not people.can_view_pilot(session, viewer=viewer, pilot_id=enrolment.student_id):
+        raise NotFound("No such enrolment.")
+    return enrolment
+
+
+def enrolment_for_check(session: Session, *, enrolment_id: int, actor: Person) -> Enrolment:
+    """Any instructor may be asked to act as check instructor, so any instructor may find the enrolment."""
+    enrolment = session.get(Enrolment, enrolment_id)
+    if enrolment is None or not (actor.has_role("instructor", "chief_pilot")
+                                 or people.can_view_pilot(session, viewer=actor, pilot_id=enrolment.student_id)):
+        raise NotFound("No such enrolment.")
+    return enrolment
+
+
+# ---- progress through the syllabus -------------------------------------------------------------
+
+@dataclass
+class RequirementProgress:
+    requirement: LessonRequirement
+    counted: int
+
+    @property
+    def met(self) -> bool:
+        return self.counted >= self.requirement.attempts_needed
+
+    @property
+    def still_needed(self) -> int:
+        return max(0, self.requirement.attempts_needed - self.counted)
+
+    @property
+    def words(self) -> str:
+        kind = (f"{MANEUVER_LABELS[self.requirement.maneuver].lower()} autorotation"
+                f"{'s' if self.still_needed != 1 else ''} "
+                f"({TERMINATION_LABELS[self.requirement.termination].lower()})")
+        return f"{self.still_needed} more {kind} inside every tolerance"
+
+
+@dataclass
+class LessonProgress:
+    lesson: Lesson
+    requirements: list[RequirementProgress]
+    completion: LessonCompletion | None
+    confirmed_by: Person | None = None
+
+    @property
+    def attempts_met(self) -> bool:
+        return all(r.met for r in self.requirements)
+
+    @property
+    def confirmed(self) -> bool:
+        return self.completion is not None
+
+
+@dataclass
+class StageProgress:
+    stage: Stage
+    lessons: list[LessonProgress]
+    check: StageCheck | None
+    checked_by: Person | None = None
+
+    @property
+    def lessons_confirmed(self) -> bool:
+        return all(lesson.confirmed for lesson in self.lessons)
+
+    @property
+    def passed(self) -> bool:
+        return self.check is not None and self.check.passed
+
+
+@dataclass
+class ProgramProgress:
+    enrolment: Enrolment
+    program: Program
+    stages: list[StageProgress] = field(default_factory=list)
+
+    @property
+    def current_stage(self) -> StageProgress | None:
+        return next((s for s in self.stages if not s.passed), None)
+
+    @property
+    def current_lesson(self) -> LessonProgress | None:
+        stage = self.current_stage
+        return next((lesson for lesson in stage.lessons if not lesson.confirmed), None) if stage else None
+
+
+def _standard_family(session: Session, standard_id: int) -> set[int]:
+    """A standard and every later version that supersedes it."""
+    family, frontier = {standard_id}, {standard_id}
+    while frontier:
+        frontier = set(session.scalars(select(Standard.id).where(Standard.supersedes_id.in_(frontier)))) - family
+        family |= frontier
+    return family
+
+
+def count_for(session: Session, requirement: LessonRequirement, points: Sequence[AttemptPoint],
+              since: date) -> int:
+    """Counted attempts of the requirement's kind, inside every tolerance, flown since enrolment."""
+    family = _standard_family(session, requirement.standard_id) if requirement.standard_id else None
+    return sum(
+        1 for p in points
+        if p.maneuver == requirement.maneuver and p.termination == requirement.termination
+        and p.within_tolerances and p.flown_on >= since
+        and (family is None or p.standard_id in family)
+    )
+
+
+def program_progress(session: Session, *, enrolment: Enrolment,
+                     points: Sequence[AttemptPoint] | None = None) -> ProgramProgress:
+    """Where the student stands: each requirement counted from the records, each sign-off and check."""
+    if points is None:
+        points = read_points(session, pilot_id=enrolment.student_id)
+    program = session.get(Program, enrolment.program_id)
+    completions = {c.lesson_id: c for c in session.scalars(
+        select(LessonCompletion).where(LessonCompletion.enrolment_id == enrolment.id))}
+    checks: dict[int, StageCheck] = {}
+    for check in session.scalars(select(StageCheck).where(StageCheck.enrolment_id == enrolment.id)
+                                 .order_by(StageCheck.signed_at, StageCheck.id)):
+        checks[check.stage_id] = check  # the latest check of a stage stands
+    result = ProgramProgress(enrolment=enrolment, program=program)
+    for stage in program.stages:
+        lessons = []
+        for lesson in stage.lessons:
+            completion = completions.get(lesson.id)
+            lessons.append(LessonProgress(
+                lesson=lesson, completion=completion,
+                confirmed_by=session.get(Person, completion.confirmed_by_id) if completion else None,
+                requirements=[RequirementProgress(r, count_for(session, r, points, enrolment.started_on))
+                              for r in lesson.requirements],
+            ))
+        check = checks.get(stage.id)
+        result.stages.append(StageProgress(stage=stage, lessons=lessons, check=check,
+                                           checked_by=session.get(Person, check.checker_id) if check else None))
+    return result
+
+
+# ---- sign-offs ---------------------------------------------------------------------------------
+
+def _lesson_of(program: Program, lesson_id: int) -> tuple[Stage, Lesson]:
+    for stage in program.stages:
+        for lesson in stage.lessons:
+            if lesson.id == lesson_id:
+                return stage, lesson
+    raise NotFound("That lesson is not part of this student's program.")
+
+
+def confirm_lesson(session: Session, *, actor: Person, enrolment: Enrolment, lesson_id: int) -> LessonCompletion:
+    """An instructor confirms a lesson whose requirements the counted attempts meet."""
+    if not actor.has_role("instructor", "chief_pilot") or actor.id == enrolment.student_id:
+        raise Forbidden("Only the student's instructors or a chief pilot can confirm a lesson.")
+    if not people.can_view_pilot(session, viewer=actor, pilot_id=enrolment.student_id):
+        raise NotFound("No such enrolment.")
+    progress = program_progress(session, enrolment=enrolment)
+    lesson_progress = next((lp for s in progress.stages for lp in s.lessons if lp.lesson.id == lesson_id), None)
+    if lesson_progress is None:
+        raise NotFound("That lesson is not part of this student's program.")
+    if lesson_progress.confirmed:
+        raise Conflict(f"Lesson “{lesson_progress.lesson.name}” is confirmed already.")
+    if not lesson_progress.attempts_met:
+        missing = "; ".join(r.words for r in lesson_progress.requirements if not r.met)
+        raise Conflict(f"Lesson “{lesson_progress.lesson.name}” is not met by the signed records yet: {missing}.")
+    completion = LessonCompletion(enrolment_id=enrolment.id, lesson_id=lesson_id, confirmed_by_id=actor.id)
+    session.add(completion)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="confirm_lesson", entity="enrolment", entity_id=enrolment.id,
+                 after={"lesson_id": lesson_id})
+    return completion
+
+
+def may_check(actor: Person, enrolment: Enrolment) -> bool:
+    """A chief pilot, or an instructor who is not the student's usual instructor (nor the student)."""
+    if actor.id == enrolment.student_id:
+        return False
+    return actor.has_role("chief_pilot") or (actor.has_role("instructor") and actor.id != enrolment.instructor_id)
+
+
+def sign_stage_check(session: Session, *, actor: Person, enrolment: Enrolment, stage_id: int, passed: bool,
+                     remarks: str, password: str) -> StageCheck:
+    """Record a stage check, signed by re-entering the checker's password."""
+    if not may_check(actor, enrolment):
+        usual = session.get(Person, enrolment.instructor_id) if enrolment.instructor_id else None
+        if usual is not None and actor.id == usual.id:
+            raise Forbidden("You are this student's usual instructor: a stage check is signed by a chief pilot "
+                            "or by another instructor acting as check instructor.")
+        raise Forbidden("A stage check is signed by a chief pilot or by a check instructor who is not the "
+                        "student's usual instructor.")
+    program = session.get(Program, enrolment.program_id)
+    stage = next((s for s in program.stages if s.id == stage_id), None)
+    if stage is None:
+        raise NotFound("That stage is not part of this student's program.")
+    if not verify_password(actor.password_hash, password):
+        audit.append(session, actor_id=actor.id, action="sign_refused", entity="enrolment", entity_id=enrolment.id,
+                     reason="wrong password")
+        raise Invalid("That password is not right; the stage check was not signed.")
+    if passed:
+        progress = program_progress(session, enrolment=enrolment)
+        stage_progress = next(s for s in progress.stages if s.stage.id == stage_id)
+        open_lessons = [lp.lesson.name for lp in stage_progress.lessons if not lp.confirmed]
+        if open_lessons:
+            raise Conflict("Every lesson of the stage is confirmed before a pass is signed; still open: "
+                           + ", ".join(f"“{name}”" for name in open_lessons) + ".")
+    check = StageCheck(enrolment_id=enrolment.id, stage_id=stage_id, checker_id=actor.id, passed=passed,
+                       remarks=remarks.strip())
+    session.add(check)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="stage_check", entity="enrolment", entity_id=enrolment.id,
+                 after={"stage_id": stage_id, "passed": passed, "remarks": check.remarks})
+    return check
