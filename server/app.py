@@ -16,6 +16,10 @@ from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
 from server.people import api as people_api
 from server.people import routes as people_routes
+from server.progress import api as progress_api
+from server.progress import routes as progress_routes
+from server.training import api as training_api
+from server.training import routes as training_routes
 from server.security import SecurityHeaders
 from server.web import is_htmx, render
 
@@ -42,6 +46,10 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         app.include_router(module.router, prefix="/api/v1")
     for module in (people_routes, logbook_routes):
         app.include_router(module.router)
+    app.include_router(progress_api.router, prefix="/api/v1")
+    app.include_router(training_api.router, prefix="/api/v1")
+    app.include_router(progress_routes.router)
+    app.include_router(training_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)
