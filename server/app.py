@@ -12,6 +12,7 @@ from server.db import make_engine, make_session_factory
 from server.deps import SignInRequired
 from server.errors import FlarebookError
 from server.fleet import api as fleet_api
+from server.fleet import routes as fleet_routes
 from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
 from server.people import api as people_api
@@ -21,6 +22,7 @@ from server.progress import routes as progress_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
 from server.security import SecurityHeaders
+from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
 
 
@@ -50,6 +52,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(training_api.router, prefix="/api/v1")
     app.include_router(progress_routes.router)
     app.include_router(training_routes.router)
+    app.include_router(standards_api.router, prefix="/api/v1")
+    for module in (fleet_routes, standards_routes):
+        app.include_router(module.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

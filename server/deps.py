@@ -111,3 +111,12 @@ ApiUser = Annotated[Person, Depends(api_user)]
 def require_role(person: Person, *roles: str) -> None:
     if not person.has_role(*roles):
         raise Forbidden("Your role does not allow this.")
+
+
+def setup_user(person: PageUser) -> Person:
+    """The signed-in chief pilot or administrator, for the Setup pages."""
+    require_role(person, "chief_pilot", "admin")
+    return person
+
+
+SetupUser = Annotated[Person, Depends(setup_user)]

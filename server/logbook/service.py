@@ -53,13 +53,15 @@ def get_attempt(session: Session, *, attempt_id: int, viewer: Person) -> Attempt
     return attempt
 
 
-def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = None,
+def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = None, type_id: int | None = None,
                  limit: int = 50, offset: int = 0) -> list[Sortie]:
     """Newest first, only what the viewer may see, only the latest version of each record."""
     superseding = select(Sortie.supersedes_id).where(Sortie.supersedes_id.is_not(None))
     query = select(Sortie).where(Sortie.id.not_in(superseding)).order_by(Sortie.flown_at.desc(), Sortie.id.desc())
     if pilot_id is not None:
         query = query.where(Sortie.pilot_id == pilot_id)
+    if type_id is not None:
+        query = query.where(Sortie.aircraft_id.in_(select(Aircraft.id).where(Aircraft.type_id == type_id)))
     if not viewer.sees_everyone:
         ids = {viewer.id}
         if viewer.has_role("instructor"):
