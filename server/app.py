@@ -21,6 +21,8 @@ from server.progress import api as progress_api
 from server.progress import routes as progress_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
+from server.records import routes as records_routes
+from server.records.refusals import record_refusal
 from server.security import SecurityHeaders
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
@@ -55,6 +57,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(standards_api.router, prefix="/api/v1")
     for module in (fleet_routes, standards_routes):
         app.include_router(module.router)
+    app.include_router(records_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)
@@ -75,6 +78,7 @@ def readable_errors(exc: RequestValidationError) -> list[dict]:
 def _add_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(FlarebookError)
     async def _service_error(request: Request, exc: FlarebookError):
+        await record_refusal(request, exc)  # 403 and 404 go into the audit chain
         if request.url.path.startswith("/api/"):
             return JSONResponse({"detail": exc.message}, status_code=exc.status_code)
         return render(request, "error.html", {"message": exc.message, "status": exc.status_code},

@@ -10,6 +10,7 @@ from server.errors import FlarebookError
 from server.migrate import upgrade
 from server.people import service as people
 from server.people.models import ROLES, Person
+from server.records import commands as records_commands
 
 
 def _sessions():
@@ -81,6 +82,7 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("email")
     new.add_argument("--label", default="command line")
     new.set_defaults(run=cmd_token_new)
+    records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
     return parser
 
 

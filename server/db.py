@@ -31,6 +31,29 @@ def _sqlite_pragmas(dbapi_connection, _record) -> None:
     cursor.close()
 
 
+# Execution option that marks a connection whose transactions write (see _sqlite_begin).
+WRITES = {"flarebook_writes": True}
+
+
+def _sqlite_begin(connection) -> None:
+    """Begin a writing transaction with BEGIN IMMEDIATE; leave read-only ones to pysqlite."""
+    dbapi_connection = connection.connection.dbapi_connection
+    if connection.get_execution_options().get("flarebook_writes"):
+        # Take the write lock when the transaction starts, so writers queue on busy_timeout instead of
+        # one failing with SQLITE_BUSY when it upgrades a read (SQLite docs: "BEGIN IMMEDIATE", WAL;
+        # SQLAlchemy docs: pysqlite "serializable isolation" recipe).
+        dbapi_connection.isolation_level = None
+        connection.exec_driver_sql("BEGIN IMMEDIATE")
+    else:
+        # pysqlite's own behaviour: reads see the latest commit, BEGIN comes before the first change.
+        dbapi_connection.isolation_level = ""
+
+
+def begin_writing(session: Session) -> None:
+    """Start the session's transaction as a writer: on SQLite it holds the write lock from here."""
+    session.connection(execution_options=WRITES)
+
+
 def make_engine(url: str) -> Engine:
     """Create an engine; for SQLite make the data folder and turn on the pragmas."""
     parsed = make_url(url)
@@ -39,6 +62,7 @@ def make_engine(url: str) -> Engine:
             Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
         engine = create_engine(url, connect_args={"check_same_thread": False, "timeout": 10})
         event.listen(engine, "connect", _sqlite_pragmas)
+        event.listen(engine, "begin", _sqlite_begin)
         return engine
     return create_engine(url, pool_pre_ping=True, pool_size=10, max_overflow=20)
 
@@ -51,6 +75,7 @@ def make_session_factory(engine: Engine) -> sessionmaker[Session]:
 def transaction(factory: sessionmaker[Session]) -> Iterator[Session]:
     """One unit of work: commit on success, roll back on error."""
     with factory() as session:
+        begin_writing(session)
         try:
             yield session
             session.commit()

@@ -5,6 +5,7 @@ from typing import Annotated
 from fastapi import Depends, Request
 from sqlalchemy.orm import Session
 
+from server.db import begin_writing
 from server.errors import Forbidden, Unauthorized
 from server.people import service as people
 from server.people.models import Person, UserSession
@@ -28,6 +29,8 @@ def cookie_name(request: Request) -> str:
 def get_db(request: Request) -> Iterator[Session]:
     """One transaction per request, committed before the answer is sent."""
     with request.app.state.sessions() as session:
+        if request.method in UNSAFE_METHODS:
+            begin_writing(session)  # writers queue for SQLite's write lock from the start
         try:
             yield session
             session.commit()
@@ -82,6 +85,7 @@ async def page_user(request: Request, db: DbSession, user_session: BrowserSessio
     person = db.get(Person, user_session.person_id)
     if person is None or not person.active:
         raise SignInRequired()
+    request.state.person_id = person.id
     await check_csrf(request, user_session)
     request.state.user_session = user_session
     return person
@@ -94,12 +98,14 @@ async def api_user(request: Request, db: DbSession, user_session: BrowserSession
         person = people.person_for_token(db, authorization[7:].strip())
         if person is None:
             raise Unauthorized("That API token is not valid.")
+        request.state.person_id = person.id  # names the actor if an access is refused
         return person
     if user_session is None or user_session.person_id is None:
         raise Unauthorized("Sign in, or send Authorization: Bearer <token>.")
     person = db.get(Person, user_session.person_id)
     if person is None or not person.active:
         raise Unauthorized("Sign in, or send Authorization: Bearer <token>.")
+    request.state.person_id = person.id
     await check_csrf(request, user_session)
     return person
 

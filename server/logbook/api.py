@@ -9,6 +9,7 @@ from server.errors import Invalid
 from server.logbook import derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
+from server.records.idempotency import IdempotentCreate
 from server.logbook.schemas import (
     KG_PER_LB,
     AmendRequest,
@@ -81,8 +82,9 @@ def list_sorties(db: DbSession, person: ApiUser, pilot_id: int | None = None,
 
 
 @router.post("/sorties", response_model=SortieRead, status_code=201)
-def create_sortie(data: SortieCreate, db: DbSession, person: ApiUser):
-    return sortie_read(db, logbook.create_sortie(db, actor=person, data=data))
+def create_sortie(data: SortieCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
+    """Start a sortie; with an Idempotency-Key header a resent request creates it only once."""
+    return once.run(lambda: sortie_read(db, logbook.create_sortie(db, actor=person, data=data)), status_code=201)
 
 
 @router.get("/sorties/{sortie_id}", response_model=SortieRead)
@@ -99,7 +101,11 @@ def update_sortie(sortie_id: int, data: SortieUpdate, db: DbSession, person: Api
 @router.post("/sorties/{sortie_id}/sign", response_model=SortieRead)
 def sign_sortie(sortie_id: int, data: SignRequest, db: DbSession, person: ApiUser):
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
-    logbook.sign_sortie(db, actor=person, sortie=sortie, password=data.password)
+    try:
+        logbook.sign_sortie(db, actor=person, sortie=sortie, password=data.password)
+    except Invalid:
+        db.commit()  # the refused signing stays in the audit chain, as on the sortie sheet
+        raise
     return sortie_read(db, sortie)
 
 
@@ -117,9 +123,11 @@ def amend_sortie(sortie_id: int, data: AmendRequest, db: DbSession, person: ApiU
 
 
 @router.post("/sorties/{sortie_id}/attempts", response_model=AttemptRead, status_code=201)
-def add_attempt(sortie_id: int, data: AttemptFields, db: DbSession, person: ApiUser):
+def add_attempt(sortie_id: int, data: AttemptFields, db: DbSession, person: ApiUser, once: IdempotentCreate):
+    """Log an attempt; with an Idempotency-Key header a resent request logs it only once."""
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
-    return attempt_read(logbook.add_attempt(db, actor=person, sortie=sortie, data=data))
+    return once.run(lambda: attempt_read(logbook.add_attempt(db, actor=person, sortie=sortie, data=data)),
+                    status_code=201)
 
 
 @router.get("/attempts/{attempt_id}", response_model=AttemptRead)

@@ -1,15 +1,20 @@
 """The audit chain: every change and access decision, each row hashed with the one before."""
 import hashlib
 import json
+from collections.abc import Iterable
+from dataclasses import dataclass
 from datetime import datetime
+from pathlib import Path
 
-from sqlalchemy import select
+from sqlalchemy import select, text
 from sqlalchemy.orm import Session
 
 from server.records.models import AuditEvent
 from server.types import utcnow
 
 GENESIS = "0" * 64
+# Any fixed number: the PostgreSQL advisory lock that queues appends (released at commit).
+APPEND_LOCK_KEY = 0x464C4152
 
 
 def canonical_json(value) -> str:
@@ -37,6 +42,7 @@ def event_hash(*, prev_hash: str, seq: int, at: datetime, actor_id: int | None, 
 def append(session: Session, *, actor_id: int | None, action: str, entity: str,
            entity_id: str | int | None = None, before=None, after=None, reason: str | None = None) -> AuditEvent:
     """Add one audit row in the caller's transaction, chained to the last one."""
+    _queue_for_append(session)
     last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
     seq, prev_hash = (last.seq + 1, last.hash) if last else (1, GENESIS)
     at = utcnow()
@@ -52,3 +58,119 @@ def append(session: Session, *, actor_id: int | None, action: str, entity: str,
     session.add(row)
     session.flush()
     return row
+
+
+def _queue_for_append(session: Session) -> None:
+    """Make appends take turns, so two transactions never chain to the same last row.
+
+    SQLite: writing transactions begin with BEGIN IMMEDIATE (server/db.py), which already holds the one
+    write lock. PostgreSQL: a transaction-scoped advisory lock, held until commit or rollback.
+    """
+    if session.get_bind().dialect.name == "postgresql":
+        session.execute(text("SELECT pg_advisory_xact_lock(:key)"), {"key": APPEND_LOCK_KEY})
+
+
+def row_hash(row: AuditEvent) -> str:
+    """The hash a stored row should carry, recomputed from its content."""
+    return event_hash(prev_hash=row.prev_hash, seq=row.seq, at=row.at, actor_id=row.actor_id, action=row.action,
+                      entity=row.entity, entity_id=row.entity_id, before=row.before, after=row.after,
+                      reason=row.reason)
+
+
+# ---- checking the chain --------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Head:
+    """The last entry of the chain, kept outside the database so that truncation shows."""
+
+    seq: int
+    hash: str
+
+    def to_json(self) -> str:
+        return json.dumps({"seq": self.seq, "hash": self.hash}) + "\n"
+
+    @classmethod
+    def read(cls, path: Path) -> "Head":
+        try:
+            data = json.loads(Path(path).read_text())
+            head = cls(seq=int(data["seq"]), hash=str(data["hash"]))
+        except (OSError, ValueError, KeyError, TypeError) as error:
+            raise ValueError(f"{path} is not an exported audit head ({error})") from None
+        if head.seq < 0 or len(head.hash) != 64:
+            raise ValueError(f"{path} is not an exported audit head")
+        return head
+
+
+@dataclass(frozen=True)
+class Problem:
+    """The first entry that breaks the chain, and what is wrong with it."""
+
+    seq: int
+    what: str
+
+    def __str__(self) -> str:
+        return f"audit entry seq {self.seq}: {self.what}"
+
+
+@dataclass(frozen=True)
+class ChainReport:
+    entries: int
+    head: Head
+    problem: Problem | None
+
+    @property
+    def ok(self) -> bool:
+        return self.problem is None
+
+
+def current_head(session: Session) -> Head:
+    last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
+    return Head(seq=last.seq, hash=last.hash) if last else Head(seq=0, hash=GENESIS)
+
+
+def check_rows(rows: Iterable[AuditEvent], kept_head: Head | None = None) -> ChainReport:
+    """Walk rows in seq order from seq 1; stop at the first one that breaks the chain."""
+    expected_seq, prev_hash, count = 1, GENESIS, 0
+    for row in rows:
+        if row.seq != expected_seq:
+            return ChainReport(count, Head(expected_seq - 1, prev_hash), Problem(
+                expected_seq, f"missing (the next entry in the database is seq {row.seq})"))
+        if row.prev_hash != prev_hash:
+            return ChainReport(count, Head(expected_seq - 1, prev_hash), Problem(
+                row.seq, f"does not follow seq {row.seq - 1}: its prev_hash is not that entry's hash"))
+        if row_hash(row) != row.hash:
+            return ChainReport(count, Head(expected_seq - 1, prev_hash), Problem(
+                row.seq, "changed after it was written: its content does not match its hash"))
+        if kept_head is not None and row.seq == kept_head.seq and row.hash != kept_head.hash:
+            return ChainReport(count, Head(expected_seq - 1, prev_hash), Problem(
+                row.seq, "differs from the exported head: the chain was rewritten from here or earlier"))
+        count, prev_hash, expected_seq = count + 1, row.hash, expected_seq + 1
+    head = Head(expected_seq - 1, prev_hash)
+    if kept_head is not None and head.seq < kept_head.seq:
+        return ChainReport(count, head, Problem(
+            head.seq + 1, f"missing: the chain ends at seq {head.seq} but the exported head is seq {kept_head.seq}"))
+    return ChainReport(count, head, None)
+
+
+def verify(session: Session, kept_head: Head | None = None) -> ChainReport:
+    """Check the whole chain in the database, optionally against a head kept outside it."""
+    rows = session.scalars(select(AuditEvent).order_by(AuditEvent.seq).execution_options(yield_per=500))
+    return check_rows(rows, kept_head)
+
+
+def entry_checks(session: Session, rows: list[AuditEvent]) -> dict[int, str | None]:
+    """For a few rows (one record's), what is wrong with each, or None when it holds in the chain."""
+    previous = {seq: h for seq, h in session.execute(
+        select(AuditEvent.seq, AuditEvent.hash).where(AuditEvent.seq.in_([r.seq - 1 for r in rows])))}
+    out = {}
+    for row in rows:
+        expected_prev = GENESIS if row.seq == 1 else previous.get(row.seq - 1)
+        if row_hash(row) != row.hash:
+            out[row.seq] = "content does not match its hash"
+        elif expected_prev is None:
+            out[row.seq] = f"entry seq {row.seq - 1} before it is missing"
+        elif row.prev_hash != expected_prev:
+            out[row.seq] = f"does not follow entry seq {row.seq - 1}"
+        else:
+            out[row.seq] = None
+    return out

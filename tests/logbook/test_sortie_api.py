@@ -130,7 +130,11 @@ def test_a_student_cannot_see_another_students_sortie(student_client, other_stud
 def test_students_cannot_start_sorties(student_client, world, db):
     before = counts(db)
     assert new_sortie(student_client, world).status_code == 403
-    assert counts(db) == before
+    sorties, attempts, audit_rows = counts(db)
+    # Nothing is created; the refusal itself is kept in the audit chain.
+    assert (sorties, attempts, audit_rows) == (before[0], before[1], before[2] + 1)
+    refusal = db.scalar(select(AuditEvent).order_by(AuditEvent.seq.desc()).limit(1))
+    assert refusal.action == "access_refused" and refusal.actor_id == world.student.id
 
 
 def test_the_pilot_acknowledges_a_signed_sortie(student_client, world, db):

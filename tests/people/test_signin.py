@@ -46,7 +46,9 @@ def test_a_forged_form_changes_nothing(instructor_client, world, db):
     before = db.scalar(select(func.count()).select_from(AuditEvent))
     forged = instructor_client.post("/sorties/new", data={"pilot_id": world.student.id, "csrf_token": "forged"})
     assert forged.status_code == 403
-    assert db.scalar(select(func.count()).select_from(AuditEvent)) == before
+    # Nothing changes but the audit chain, which keeps the refusal (and who was refused).
+    rows = db.scalars(select(AuditEvent).where(AuditEvent.seq > before)).all()
+    assert [(r.action, r.actor_id) for r in rows] == [("access_refused", world.instructor.id)]
 
 
 def test_sign_in_gives_a_new_session_id_and_an_http_only_cookie(anonymous, world):

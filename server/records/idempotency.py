@@ -1,0 +1,106 @@
+"""Idempotency-Key on create routes: a tablet that resends a request gets the first answer back.
+
+Follows the IETF httpapi draft "The Idempotency-Key HTTP Header Field" (draft-ietf-httpapi-idempotency-key-header):
+the key is chosen by the client and scoped here to the signed-in person; a repeat with the same request
+gets the first status and body again; the same key with a different request is refused with 422.
+The key is stored in the same transaction as the record it created, so both exist or neither does.
+A second request with the key while the first is still running waits for it (SQLite's write lock, or
+PostgreSQL's unique index) and then gets its answer.
+"""
+import hashlib
+import json
+from collections.abc import Callable
+from typing import Annotated
+
+from fastapi import Depends, Request, Response
+from fastapi.encoders import jsonable_encoder
+from pydantic import BaseModel
+from sqlalchemy import select
+from sqlalchemy.exc import IntegrityError
+from sqlalchemy.orm import Session
+
+from server.deps import ApiUser, DbSession
+from server.errors import Conflict, FlarebookError, Invalid
+from server.people.models import Person
+from server.records.models import IdempotencyKey
+
+HEADER = "Idempotency-Key"
+MAX_KEY_LENGTH = 255
+
+
+class BadKey(FlarebookError):
+    status_code = 400
+
+
+def parse_key(raw: str) -> str:
+    """The key's value; the draft sends it as a quoted structured-field string, plain values pass too."""
+    value = raw.strip()
+    if len(value) >= 2 and value[0] == value[-1] == '"':
+        value = value[1:-1]
+    if not value or len(value) > MAX_KEY_LENGTH or not value.isprintable():
+        raise BadKey(f"{HEADER} must be 1 to {MAX_KEY_LENGTH} printable characters, such as a UUID.")
+    return value
+
+
+def fingerprint(method: str, path: str, body: bytes) -> str:
+    """SHA-256 of the request: the same JSON with other spacing or key order counts as the same."""
+    try:
+        canonical = json.dumps(json.loads(body or b"null"), sort_keys=True, separators=(",", ":"))
+    except ValueError:
+        canonical = body.decode("utf-8", "replace")
+    return hashlib.sha256(f"{method} {path}\n{canonical}".encode()).hexdigest()
+
+
+class Once:
+    """Runs a create at most once per key and person, and remembers its answer."""
+
+    def __init__(self, db: Session, person: Person, key: str | None, request_sha256: str):
+        self.db, self.person, self.key, self.request_sha256 = db, person, key, request_sha256
+
+    def _stored(self) -> IdempotencyKey | None:
+        return self.db.scalar(select(IdempotencyKey).where(IdempotencyKey.person_id == self.person.id,
+                                                           IdempotencyKey.key == self.key))
+
+    def _replay(self, row: IdempotencyKey) -> Response:
+        if row.request_sha256 != self.request_sha256:
+            raise Invalid(f"This {HEADER} was already used for a different request; send a new key.")
+        return Response(row.response_body, status_code=row.status_code, media_type="application/json")
+
+    def _claim(self) -> IdempotencyKey | Response:
+        row = self._stored()
+        if row is not None:
+            return self._replay(row)
+        claim = IdempotencyKey(person_id=self.person.id, key=self.key, request_sha256=self.request_sha256,
+                               status_code=0, response_body="")
+        try:
+            with self.db.begin_nested():
+                self.db.add(claim)
+        except IntegrityError:
+            # Another request with this key committed first: answer as it did.
+            row = self._stored()
+            if row is None:
+                raise Conflict(f"A request with this {HEADER} is still being processed; try again.") from None
+            return self._replay(row)
+        return claim
+
+    def run(self, create: Callable[[], BaseModel], *, status_code: int) -> BaseModel | Response:
+        """The create's answer; with a key seen before, the first answer instead."""
+        if self.key is None:
+            return create()
+        claim = self._claim()
+        if isinstance(claim, Response):
+            return claim
+        body = json.dumps(jsonable_encoder(create()), separators=(",", ":"))
+        claim.status_code, claim.response_body = status_code, body
+        self.db.flush()
+        return Response(body, status_code=status_code, media_type="application/json")
+
+
+async def once(request: Request, db: DbSession, person: ApiUser) -> Once:
+    raw = request.headers.get(HEADER)
+    key = parse_key(raw) if raw is not None else None
+    digest = fingerprint(request.method, request.url.path, await request.body()) if key else ""
+    return Once(db, person, key, digest)
+
+
+IdempotentCreate = Annotated[Once, Depends(once)]
