@@ -19,6 +19,8 @@ from server.people import api as people_api
 from server.people import routes as people_routes
 from server.progress import api as progress_api
 from server.progress import routes as progress_routes
+from server.safety import api as safety_api
+from server.safety import routes as safety_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
 from server.records import routes as records_routes
@@ -54,6 +56,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(training_api.router, prefix="/api/v1")
     app.include_router(progress_routes.router)
     app.include_router(training_routes.router)
+    app.include_router(safety_api.router, prefix="/api/v1")
+    app.include_router(safety_routes.router)
     app.include_router(standards_api.router, prefix="/api/v1")
     for module in (fleet_routes, standards_routes):
         app.include_router(module.router)
