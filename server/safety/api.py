@@ -28,7 +28,8 @@ def flagged_read(item: safety.FlaggedAttempt) -> FlaggedAttemptRead:
     a, s = item.attempt, item.sortie
     return FlaggedAttemptRead(
         attempt_id=a.id, sortie_id=s.id, sequence=a.sequence, flown_on=a.flown_on, pilot_id=s.pilot_id,
-        pilot_name=s.pilot.name, instructor_id=s.instructor_id, instructor_name=s.instructor.name if s.instructor else None,
+        pilot_name=s.pilot.name, instructor_id=s.instructor_id,
+        instructor_name=s.instructor.name if s.instructor else None,
         aircraft_registration=s.aircraft.registration, site_name=s.site.name,
         density_altitude_ft=s.density_altitude_ft, maneuver=a.maneuver, termination=a.termination, score=a.score,
         flags=a.flags,

@@ -72,7 +72,8 @@ def test_sign_in_replaces_the_pre_sign_in_session(app, world, db):
     client = TestClient(app, base_url="http://testserver", follow_redirects=False)
     page = client.get("/signin")
     before = client.cookies.get("flarebook")
-    client.post("/signin", data={"email": world.student.email, "password": PASSWORD, "csrf_token": csrf_from(page.text)})
+    client.post("/signin", data={"email": world.student.email, "password": PASSWORD,
+                                 "csrf_token": csrf_from(page.text)})
     after = client.cookies.get("flarebook")
     assert after != before
     old = db.get(UserSession, sha256_hex(before))
