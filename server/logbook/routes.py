@@ -121,7 +121,7 @@ async def conditions_preview(request: Request, db: DbSession, person: PageUser):
     readout = derive.conditions(data) if data is not None else None
     context = {"readout": readout, "errors": _rename_altimeter(errors)}
     if readout is None:
-        context["readout"] = {"message": message or "Check the marked conditions.", "filled_from_metar": []}
+        context["readout"] = {"message": message or "These conditions need a look:", "filled_from_metar": []}
     response = render(request, "logbook/_conditions_readout.html", context)
     if readout is not None and readout.filled_from_metar and request.headers.get("HX-Trigger-Name") == "metar":
         filled = {k: _plain(getattr(readout, k)) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}

@@ -158,3 +158,17 @@ def test_a_wrong_signing_password_leaves_the_sortie_a_draft(page, world, db):
     expect(page.get_by_role("alert")).to_be_visible()
     expect(page.locator(".state-line")).to_contain_text("Draft")
     expect(page.locator("#attempt-form")).to_be_visible()
+
+
+def test_an_impossible_temperature_is_refused_in_the_readout_as_it_is_typed(page, world):
+    errors = watch_errors(page)
+    sign_in(page, world.instructor.email)
+    page.goto("/sorties/new")
+    page.get_by_label("Altimeter setting").press_sequentially("1013")
+    page.get_by_label("Outside air temperature").press_sequentially("15")
+    expect(page.locator("#density-altitude")).to_have_text(re.compile(r"\d ft$"))
+    page.get_by_label("Outside air temperature").press_sequentially("0")  # 150 °C
+    readout = page.locator("#conditions-readout")
+    expect(readout.locator(".notice-error")).to_contain_text("temperature")
+    expect(page.locator("#density-altitude")).to_have_text("—")
+    assert [e for e in errors if "500" in e] == []
