@@ -118,7 +118,8 @@ def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
                 continue
             key = (row["pilot_id"], rule.id)
             dates = latest.setdefault(key, [])
-            n, run = row[f"n{i}"] or 0, row[f"run{i}"] or 0
+            # PostgreSQL sums come back as Decimal.
+            n, run = int(row[f"n{i}"] or 0), int(row[f"run{i}"] or 0)
             if n and run - n < rule.min_count:
                 # Several attempts on one day each count: repeat the date as often as it is needed.
                 dates.extend([row["flown_on"]] * min(n, rule.min_count - (run - n)))

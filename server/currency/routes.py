@@ -110,9 +110,9 @@ def _rule_choices(db) -> dict:
         "maneuver_choices": list(MANEUVER_LABELS.items()),
         "termination_choices": list(TERMINATION_LABELS.items()),
         "type_choices": list(db.execute(select(HelicopterType.id, HelicopterType.designation)
-                                        .order_by(HelicopterType.designation)).tuples()),
+                                        .order_by(HelicopterType.designation))),
         "people_choices": list(db.execute(select(Person.id, Person.name).where(Person.active)
-                                          .order_by(Person.name)).tuples()),
+                                          .order_by(Person.name))),
         "role_choices": [(r, ROLE_LABELS[r]) for r in ROLES],
     }
 
