@@ -26,3 +26,10 @@ def validate(model: type[BaseModel], values: dict) -> tuple[BaseModel | None, di
             else:
                 general.append(message)
         return None, by_field, "; ".join(general) or None
+
+
+def plain(value):
+    """A stored figure as a person types it: 270.0 shows as 270."""
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    return value

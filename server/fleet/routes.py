@@ -12,7 +12,7 @@ from server.fleet.hv_text import RegionTextError, format_regions, parse_regions
 from server.fleet.hvchart import hv_chart_svg, summary
 from server.fleet.models import HelicopterType
 from server.fleet.schemas import TypeCreate
-from server.forms import blank_to_none, validate
+from server.forms import blank_to_none, plain, validate
 from server.logbook import service as logbook
 from server.web import render
 
@@ -41,7 +41,7 @@ def _form_values(row: HelicopterType | None) -> dict:
     """An edit form starts from the stored type; a new one starts empty."""
     if row is None:
         return {"blade_count": 2}
-    values = {name: getattr(row, name) for name in TYPE_NAMES if name != "hv_avoid"}
+    values = {name: plain(getattr(row, name)) for name in TYPE_NAMES if name != "hv_avoid"}
     values["hv_avoid"] = format_regions(row.hv_avoid)
     return values
 

@@ -5,7 +5,7 @@ from fastapi.responses import RedirectResponse
 from server.compute.scoring import METRICS
 from server.deps import DbSession, SetupUser
 from server.errors import FlarebookError
-from server.forms import blank_to_none, validate
+from server.forms import blank_to_none, plain, validate
 from server.training import standards
 from server.training.models import Standard
 from server.training.standards_schemas import StandardCreate
@@ -47,8 +47,8 @@ def _parse(form) -> tuple[StandardCreate | None, dict, dict, str | None]:
 
 def _form_values(row: Standard | None) -> dict:
     data = standards.as_data(row) if row else standards.defaults() | {"name": "", "level": "private"}
-    values = {name: data[name] for name in FIELD_NAMES}
-    return values | {f"weight_{m}": data["weights"][m] for m in METRICS}
+    values = {name: plain(data[name]) for name in FIELD_NAMES}
+    return values | {f"weight_{m}": plain(data["weights"][m]) for m in METRICS}
 
 
 def _form_page(request, db, person, row, values, errors, message, status=200):
