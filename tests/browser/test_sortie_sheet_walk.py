@@ -89,6 +89,7 @@ def test_instructor_logs_signs_and_sees_a_sortie_on_a_tablet(page, world):
     expect(page.get_by_label("Gusting to")).to_have_value("20")
     expect(page.get_by_label("Altimeter setting")).to_have_value("1008")
     expect(page.locator("#conditions-readout")).to_contain_text("Filled from the METAR")
+    expect(page.locator("#conditions-readout")).to_contain_text("outside air temperature")  # words, not field names
     assert same_page(page)
     page.get_by_label("Take-off weight").fill("1350")
 
