@@ -36,7 +36,7 @@ class Axes:
         return round(HEIGHT - BOTTOM - (HEIGHT - TOP - BOTTOM) * height_ft / self.height_max, 1)
 
 
-def nice_step(span: float, ticks: int = 6) -> float:
+def nice_step(span: float, ticks: int = 8) -> float:
     """A round tick step (1, 2 or 5 times a power of ten) giving about `ticks` intervals."""
     raw = max(span, 1e-9) / ticks
     power = 10 ** math.floor(math.log10(raw))
@@ -111,7 +111,7 @@ def _regions(svg: ET.Element, axes: Axes, polygons: list[list[Point]], prefix: s
         _el(shape, "title", f"Avoid region {i}")
 
 
-def _marker(parent: ET.Element, axes: Axes, entry: Entry) -> None:
+def _marker(parent: ET.Element, axes: Axes, entry: Entry, label: str | None) -> None:
     x, y = axes.x(entry.kias), axes.y(entry.height_ft)
     where = "inside the avoid region" if entry.inside else "outside the avoid region"
     group = _el(parent, "g", class_="hv-entry " + ("inside" if entry.inside else "outside"),
@@ -121,7 +121,21 @@ def _marker(parent: ET.Element, axes: Axes, entry: Entry) -> None:
         _el(group, "polygon", points=f"{x},{y - 9} {x - 8},{y + 6} {x + 8},{y + 6}", fill=AVOID, stroke=INK)
     else:
         _el(group, "circle", cx=x, cy=y, r=6, fill=ENTRY, stroke=INK)
-    _el(group, "text", f"#{entry.sequence}", x=x + 10, y=y - 8, font_size=13, fill=INK, font_family="sans-serif")
+    if label:
+        _el(group, "text", label, x=x + 10, y=y - 8, font_size=13, fill=INK, font_family="sans-serif")
+
+
+def _labels(entries: list[Entry]) -> list[str | None]:
+    """One label per position: attempts entered at the same point share "#3, #4", so none hides another."""
+    by_point: dict[tuple[float, float], list[int]] = {}
+    for entry in entries:
+        by_point.setdefault((entry.kias, entry.height_ft), []).append(entry.sequence)
+    labels, done = [], set()
+    for entry in entries:
+        point = (entry.kias, entry.height_ft)
+        labels.append(None if point in done else ", ".join(f"#{n}" for n in by_point[point]))
+        done.add(point)
+    return labels
 
 
 def _legend(svg: ET.Element, prefix: str) -> None:
@@ -149,7 +163,7 @@ def hv_chart_svg(*, designation: str, polygons: list[list[Point]], entries: list
     _grid_and_axes(svg, axes)
     _regions(svg, axes, polygons, prefix)
     markers = _el(svg, "g", class_="hv-entries")
-    for entry in entries:
-        _marker(markers, axes, entry)
+    for entry, label in zip(entries, _labels(entries), strict=True):
+        _marker(markers, axes, entry, label)
     _legend(svg, prefix)
     return ET.tostring(svg, encoding="unicode")

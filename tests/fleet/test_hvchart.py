@@ -11,13 +11,13 @@ SVG = "{http://www.w3.org/2000/svg}"
 REGION = [(0, 10), (0, 400), (30, 300), (40, 100), (15, 10)]
 
 
-@given(st.floats(min_value=1, max_value=100_000))
-def test_tick_steps_are_round_numbers_giving_a_readable_count(span):
-    # Ticks of 1, 2 or 5 times a power of ten, a handful per axis: common charting practice.
-    step = nice_step(span)
+@given(st.floats(min_value=1, max_value=100_000), st.integers(min_value=4, max_value=10))
+def test_tick_steps_are_round_numbers_giving_a_readable_count(span, ticks):
+    # Ticks of 1, 2 or 5 times a power of ten, about as many as asked: common charting practice.
+    step = nice_step(span, ticks)
     mantissa = step / 10 ** math.floor(math.log10(step) + 1e-9)
     assert round(mantissa, 6) in (1, 2, 5)
-    assert 2 <= span / step <= 6 + 1e-9
+    assert ticks / 2.5 - 1e-9 <= span / step <= ticks + 1e-9
 
 
 def test_axes_start_at_zero_and_hold_every_corner_and_entry():
@@ -49,3 +49,10 @@ def test_summary_in_words():
     assert "avoid region 1 has corners at 0 KIAS and 10 ft AGL" in words
     assert "2 attempt entries plotted, 1 inside the avoid region (attempt #1)." in words
     assert summary("Wren", [], []) == "Height-velocity chart of the Wren: no avoid region entered."
+
+
+def test_entries_at_the_same_point_share_one_label():
+    svg = ET.fromstring(hv_chart_svg(designation="Wren", polygons=[REGION], entries=[
+        Entry(1, 65, 500, False), Entry(2, 70, 600, False), Entry(3, 70, 600, False)]))
+    labels = [t.text for t in svg.find(f"{SVG}g[@class='hv-entries']").iter(f"{SVG}text")]
+    assert labels == ["#1", "#2, #3"]
