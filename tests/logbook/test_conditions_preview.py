@@ -1,0 +1,58 @@
+"""The new-sortie page's live conditions: a pasted METAR fills the fields and density altitude appears;
+an unreadable one says so and fills nothing."""
+import html
+import re
+from html.parser import HTMLParser
+
+
+class InputValues(HTMLParser):
+    """name -> value of every input in a fragment."""
+
+    def __init__(self):
+        super().__init__()
+        self.values = {}
+
+    def handle_starttag(self, tag, attrs):
+        attrs = dict(attrs)
+        if tag == "input" and "name" in attrs:
+            self.values[attrs["name"]] = attrs.get("value")
+
+
+def inputs(fragment: str) -> dict:
+    parser = InputValues()
+    parser.feed(fragment)
+    return parser.values
+
+
+def figure(page: str, element_id: str) -> str:
+    return re.search(rf'id="{element_id}">([^<]*)<', page).group(1)
+
+
+def paste(client, world, metar: str):
+    return client.htmx_post("/sorties/conditions", {"site_id": str(world.site.id), "metar": metar,
+                                                    "altimeter_unit": "hPa"},
+                            headers={"HX-Trigger-Name": "metar"})
+
+
+def test_a_pasted_metar_fills_the_fields_and_density_altitude_appears(instructor_client, world):
+    # Source: ICAO Annex 3 / WMO FM 15 example for the fictitious station YUDO (from memory): 240 at 8 kt,
+    # 17 °C, QNH 1018 hPa. The test site is at 500 ft.
+    answer = paste(instructor_client, world, "METAR YUDO 221630Z 24008KT 9999 SCT010 17/16 Q1018")
+    assert answer.status_code == 200
+    filled = inputs(answer.text)
+    assert (filled["wind_dir_deg"], filled["wind_kt"], filled["oat_c"], filled["altimeter"]) == ("240", "8", "17", "1018")
+    assert 'hx-swap-oob="true"' in answer.text
+    # About 27 ft per hPa near sea level (common practice): 1018 hPa puts a 500 ft site about 130 ft lower.
+    # 17 °C is warmer than ISA there (about 14 °C), so density altitude is above pressure altitude.
+    pressure_ft = int(figure(answer.text, "pressure-altitude").split()[0].replace(",", ""))
+    density_ft = int(figure(answer.text, "density-altitude").split()[0].replace(",", ""))
+    assert 300 <= pressure_ft <= 400 and density_ft > pressure_ft
+
+
+def test_an_unreadable_metar_says_so_and_fills_nothing(instructor_client, world):
+    answer = paste(instructor_client, world, "the quick brown fox")
+    text = html.unescape(answer.text)
+    assert "This METAR could not be read" in text
+    assert "Filled from the METAR" not in text
+    assert 'hx-swap-oob' not in answer.text and "wind_kt" not in inputs(answer.text)
+    assert figure(answer.text, "density-altitude") == "—"
