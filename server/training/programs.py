@@ -1,4 +1,5 @@
 """Programs (syllabi): stages, lessons and their requirements; enrolment; lesson sign-off; stage checks."""
+from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from datetime import date
@@ -306,16 +307,18 @@ def _standard_family(session: Session, standard_id: int) -> set[int]:
     return family
 
 
-def count_for(session: Session, requirement: LessonRequirement, points: Sequence[AttemptPoint],
-              since: date) -> int:
-    """Counted attempts of the requirement's kind, inside every tolerance, flown since enrolment."""
+def inside_counts(points: Sequence[AttemptPoint], since: date) -> Counter:
+    """Counted attempts inside every tolerance since a date, by maneuver, termination and standard."""
+    return Counter((p.maneuver, p.termination, p.standard_id) for p in points
+                   if p.within_tolerances and p.flown_on >= since)
+
+
+def count_for(session: Session, requirement: LessonRequirement, counts: Counter) -> int:
+    """Attempts that meet a requirement: its kind, and its standard (or a later version) when it names one."""
     family = _standard_family(session, requirement.standard_id) if requirement.standard_id else None
-    return sum(
-        1 for p in points
-        if p.maneuver == requirement.maneuver and p.termination == requirement.termination
-        and p.within_tolerances and p.flown_on >= since
-        and (family is None or p.standard_id in family)
-    )
+    return sum(n for (maneuver, termination, standard_id), n in counts.items()
+               if maneuver == requirement.maneuver and termination == requirement.termination
+               and (family is None or standard_id in family))
 
 
 def program_progress(session: Session, *, enrolment: Enrolment,
@@ -330,6 +333,7 @@ def program_progress(session: Session, *, enrolment: Enrolment,
     for check in session.scalars(select(StageCheck).where(StageCheck.enrolment_id == enrolment.id)
                                  .order_by(StageCheck.signed_at, StageCheck.id)):
         checks[check.stage_id] = check  # the latest check of a stage stands
+    counts = inside_counts(points, enrolment.started_on)
     result = ProgramProgress(enrolment=enrolment, program=program)
     for stage in program.stages:
         lessons = []
@@ -338,7 +342,7 @@ def program_progress(session: Session, *, enrolment: Enrolment,
             lessons.append(LessonProgress(
                 lesson=lesson, completion=completion,
                 confirmed_by=session.get(Person, completion.confirmed_by_id) if completion else None,
-                requirements=[RequirementProgress(r, count_for(session, r, points, enrolment.started_on))
+                requirements=[RequirementProgress(r, count_for(session, r, counts))
                               for r in lesson.requirements],
             ))
         check = checks.get(stage.id)
