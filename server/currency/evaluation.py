@@ -83,17 +83,19 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
         days = days.where(Attempt.pilot_id.in_(list(pilot_ids)))
     days = days.group_by(Attempt.pilot_id, Attempt.flown_on).subquery("days")
 
-    newest_first = {"partition_by": days.c.pilot_id, "order_by": days.c.flown_on.desc()}
+    # Days come out of the grouping in (pilot, day) order; windows over that same order need no new sort.
+    by_day = {"partition_by": days.c.pilot_id, "order_by": days.c.flown_on}
     columns = [days.c.pilot_id, days.c.flown_on]
     for i, rule in enumerate(rules):
         n = days.c[f"n{i}"]
         start = window_start(as_of, window_days=rule.window_days, window_months=rule.window_months)
         columns += [
             n,
-            func.sum(n).over(**newest_first, rows=(None, 0)).label(f"run{i}"),
-            func.sum(case((days.c.flown_on >= start, n), else_=0)).over(**newest_first, rows=(None, None))
+            # Qualifying attempts on this day or later: this day's rank counted from the newest.
+            func.sum(n).over(**by_day, rows=(0, None)).label(f"run{i}"),
+            func.sum(case((days.c.flown_on >= start, n), else_=0)).over(**by_day, rows=(None, None))
             .label(f"win{i}"),
-            func.sum(n).over(**newest_first, rows=(None, None)).label(f"tot{i}"),
+            func.sum(n).over(**by_day, rows=(None, None)).label(f"tot{i}"),
         ]
     ranked = select(*columns).subquery("ranked")
     # Keep only the days that hold one of the min_count newest qualifying attempts of some rule.
@@ -101,7 +103,7 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
         and_(ranked.c[f"n{i}"] > 0, ranked.c[f"run{i}"] - ranked.c[f"n{i}"] < rule.min_count)
         for i, rule in enumerate(rules)
     ]
-    return select(ranked).where(or_(false(), *among_newest)).order_by(ranked.c.pilot_id, ranked.c.flown_on.desc())
+    return select(ranked).where(or_(false(), *among_newest))
 
 
 def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
@@ -125,8 +127,8 @@ def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
                 dates.extend([row["flown_on"]] * min(n, rule.min_count - (run - n)))
             if key not in out:
                 out[key] = Summary(latest_dates_desc=(), count_in_window=int(row[f"win{i}"] or 0), ever=True)
-    return {key: Summary(latest_dates_desc=tuple(latest.get(key, ())), count_in_window=summary.count_in_window,
-                         ever=True) for key, summary in out.items()}
+    return {key: Summary(latest_dates_desc=tuple(sorted(latest.get(key, ()), reverse=True)),
+                         count_in_window=summary.count_in_window, ever=True) for key, summary in out.items()}
 
 
 def status_for(rule: CurrencyRule, summary: Summary, *, as_of: date, words: tuple[str, str]) -> CurrencyStatus:
