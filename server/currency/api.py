@@ -91,7 +91,8 @@ def person_currency(person_id: int, db: DbSession, person: ApiUser, as_of: date 
     return PersonCurrencyRead(person_id=person_id, as_of=as_of, rules=[currency_read(r) for r in rows])
 
 
-@router.get("/currency", response_model=BoardRead)
+# Named apart from the readiness board page, which url_for("readiness_board") must find.
+@router.get("/currency", response_model=BoardRead, name="readiness_board_api")
 def readiness_board(db: DbSession, person: ApiUser, as_of: date | None = None, role: Role | None = None,
                     rule_id: int | None = None, status: Status | None = None):
     """Every active pilot against every rule that applies, soonest trouble first (chief pilots)."""
