@@ -91,7 +91,8 @@ def standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | 
              if rules_service.applies_to(rule, person_id=person[0], roles=list(person[2]))]
     if not pairs:
         return []
-    wanted_rules = [rule for rule in rules if any(r is rule for _, r in pairs)]
+    wanted_ids = {rule.id for _, rule in pairs}
+    wanted_rules = [rule for rule in rules if rule.id in wanted_ids]
     found = evaluation.summaries(session, rules=wanted_rules, as_of=as_of,
                                  pilot_ids=None if person_ids is None else [p[0] for p in people])
     types = rules_service.type_names(session)

@@ -111,24 +111,28 @@ def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
     """Per (pilot_id, rule_id) with any qualifying attempt by as_of; a missing pair means never done."""
     if not rules:
         return {}
-    out: dict[tuple[int, int], Summary] = {}
+    counts: dict[tuple[int, int], int] = {}
     latest: dict[tuple[int, int], list[date]] = {}
-    for row in session.execute(summaries_statement(rules, as_of=as_of, pilot_ids=pilot_ids)).mappings():
-        for i, rule in enumerate(rules):
-            total = row[f"tot{i}"] or 0
-            if not total:
+    result = session.execute(summaries_statement(rules, as_of=as_of, pilot_ids=pilot_ids))
+    # Column positions once, not a lookup by name per row and rule: the board reads thousands of rows.
+    names = list(result.keys())
+    where = [(rule.id, rule.min_count, names.index(f"n{i}"), names.index(f"run{i}"), names.index(f"win{i}"),
+              names.index(f"tot{i}")) for i, rule in enumerate(rules)]
+    for row in result:
+        pilot_id, flown_on = row[0], row[1]
+        for rule_id, min_count, n_at, run_at, win_at, tot_at in where:
+            if not row[tot_at]:
                 continue
-            key = (row["pilot_id"], rule.id)
-            dates = latest.setdefault(key, [])
-            # PostgreSQL sums come back as Decimal.
-            n, run = int(row[f"n{i}"] or 0), int(row[f"run{i}"] or 0)
-            if n and run - n < rule.min_count:
+            key = (pilot_id, rule_id)
+            if key not in counts:
+                counts[key] = int(row[win_at])  # PostgreSQL sums come back as Decimal
+                latest[key] = []
+            n, run = int(row[n_at]), int(row[run_at])
+            if n and run - n < min_count:
                 # Several attempts on one day each count: repeat the date as often as it is needed.
-                dates.extend([row["flown_on"]] * min(n, rule.min_count - (run - n)))
-            if key not in out:
-                out[key] = Summary(latest_dates_desc=(), count_in_window=int(row[f"win{i}"] or 0), ever=True)
-    return {key: Summary(latest_dates_desc=tuple(sorted(latest.get(key, ()), reverse=True)),
-                         count_in_window=summary.count_in_window, ever=True) for key, summary in out.items()}
+                latest[key].extend([flown_on] * min(n, min_count - (run - n)))
+    return {key: Summary(latest_dates_desc=tuple(sorted(latest[key], reverse=True)), count_in_window=count,
+                         ever=True) for key, count in counts.items()}
 
 
 def status_for(rule: CurrencyRule, summary: Summary, *, as_of: date, words: tuple[str, str]) -> CurrencyStatus:
