@@ -40,10 +40,12 @@ def tap_chip(scope, group: str, label: str) -> None:
     scope.get_by_role("group", name=re.compile(group)).locator("label.chip", has_text=label).tap()
 
 
-def add_attempt(page, *, maneuver: str, termination: str, fields: dict[str, str]) -> None:
+def add_attempt(page, *, maneuver: str, termination: str, fields: dict[str, str], landing: str | None = None) -> None:
     form = page.locator("#attempt-form")
     tap_chip(form, "Maneuver", maneuver)
     tap_chip(form, "Termination", termination)
+    if landing:  # the site's landing directions are one tap away
+        form.get_by_role("button", name=landing).tap()
     for label, value in fields.items():
         form.get_by_label(label).fill(value)
     before = page.locator("#attempts article.attempt").count()
@@ -99,11 +101,14 @@ def test_instructor_logs_signs_and_sees_a_sortie_on_a_tablet(page, world):
     expect(page.locator(".facts")).to_contain_text("270° 12 kt gusting 20")
     keep_marker(page)
 
-    add_attempt(page, maneuver="Straight-in", termination="Full touchdown", fields={
+    add_attempt(page, maneuver="Straight-in", termination="Full touchdown", landing="270°", fields={
         "Steady-descent airspeed": "65", "Rotor RPM lowest": "95", "Rotor RPM highest": "104",
         "Flare begun at": "90", "Touchdown or termination groundspeed": "3"})
-    # The next attempt starts from the previous one's maneuver and termination.
+    # Landing on 270 with the wind from 270 at 12 kt: all headwind.
+    expect(page.locator("#attempts article.attempt").first).to_contain_text("Wind: 12 kt head, 0 kt cross.")
+    # The next attempt starts from the previous one's maneuver, termination and landing direction.
     expect(page.locator("#attempt-form input[name=maneuver][value=straight_in]")).to_be_checked()
+    expect(page.locator("#attempt-form").get_by_label("Landing direction")).to_have_value("270")
     add_attempt(page, maneuver="180° turn", termination="Power recovery", fields={
         "Steady-descent airspeed": "63", "Flare begun at": "85"})
     add_attempt(page, maneuver="Straight-in", termination="Full touchdown", fields={
@@ -119,15 +124,17 @@ def test_instructor_logs_signs_and_sees_a_sortie_on_a_tablet(page, world):
     assert float(low_rpm.locator(".score").get_attribute("data-score")) <= 50
     expect(cards.nth(0).locator(".flags")).to_have_count(0)
 
-    # Edit the first attempt in place: a slower touchdown lifts nothing, a faster one shows in the card.
+    # Edit the first attempt in place: a touchdown at 12 kt, beyond the 8 kt limit, lowers its score.
     first = cards.nth(0)
+    score_before = float(first.locator(".score").get_attribute("data-score"))
     first.get_by_role("button", name="Edit").tap()
     edit_form = page.locator("form.attempt-form").filter(has=page.get_by_role("heading", name="Edit attempt #1"))
     expect(edit_form.get_by_label("Touchdown or termination groundspeed")).to_have_value("3")
-    edit_form.get_by_label("Touchdown or termination groundspeed").fill("6")
+    edit_form.get_by_label("Touchdown or termination groundspeed").fill("12")
     edit_form.get_by_role("button", name="Save changes").tap()
     expect(edit_form).to_have_count(0)
-    expect(cards.nth(0).locator("table.parts")).to_contain_text("6 kt")
+    expect(cards.nth(0).locator("table.parts tr.beyond")).to_contain_text("12 kt")
+    assert float(cards.nth(0).locator(".score").get_attribute("data-score")) < score_before
 
     # Remove the second attempt, after the confirmation.
     page.once("dialog", lambda dialog: dialog.accept())
