@@ -200,4 +200,7 @@ def _rules(session: Session, type_id: int) -> None:
         CurrencyRule(name="Instructors: Kestrel full touchdown within 6 calendar months",
                      applies_to_roles=["instructor"], terminations=["touchdown"], type_ids=[type_id],
                      window_months=6, min_count=1, warn_days=21, min_score=60),
+        CurrencyRule(name="Instructors: a checked autorotation with another instructor aboard every 120 days",
+                     applies_to_roles=["instructor"], with_instructor=True, window_days=120, min_count=1,
+                     warn_days=21),
     ])
