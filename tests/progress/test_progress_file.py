@@ -72,7 +72,13 @@ def test_an_instructor_opens_their_students_files_and_not_others(db, world, inst
     listing = parse(instructor_client.get("/progress").text)
     names = [a.text() for a in listing.find("ul", "pilot-list").find_all("a")]
     assert "Sam Student" in names and "Tess Otherstudent" not in names
-    assert instructor_client.get(f"/people/{world.student.id}/progress").status_code == 200
+    page = instructor_client.get(f"/people/{world.student.id}/progress")
+    assert page.status_code == 200
+    # The currency section is the student's, not the viewer's.
+    currency = parse(page.text).find("div", id="own-currency")
+    assert currency.find("h2").text() == "Currency"
+    loader = next(d for d in currency.find_all("div") if "hx-get" in d.attrs)
+    assert loader.attrs["hx-get"].endswith(f"/currency/people/{world.student.id}")
     assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 404
 
 
@@ -84,7 +90,7 @@ def test_a_student_going_to_progress_lands_on_their_own_file(world, student_clie
 
 def test_instructor_confirms_a_met_lesson_from_the_file(db, world, instructor_client, student_client):
     enrolment = _enrol(db, world, needed=2)
-    fly(db, world, [GOOD, GOOD], day=0)
+    fly(db, world, [GOOD, GOOD], day=0, start=recently())
     page = parse(instructor_client.get(f"/people/{world.student.id}/progress").text)
     action = f"/enrolments/{enrolment.id}/lessons/{enrolment_lesson(db, enrolment)}/confirm"
     form = next(f for f in page.find_all("form") if f.attrs.get("action", "").endswith(action))
