@@ -159,7 +159,7 @@ def _update_lessons(session: Session, stage: Stage, lessons: Sequence[LessonWrit
         existing = {r.id: r for r in lesson.requirements}
         requirements = []
         for r in data.requirements:
-            row = existing.get(r.id) if r.id is not None else None
+            row = existing.pop(r.id, None) if r.id is not None else None
             if r.id is not None and row is None:
                 raise Invalid(f"Requirement id {r.id} belongs to no requirement of lesson “{lesson.name}”.")
             row = row or LessonRequirement()
