@@ -3,7 +3,7 @@ import hashlib
 from datetime import datetime
 from zoneinfo import ZoneInfo
 
-from sqlalchemy import select
+from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
 from server.compute.atmosphere import inhg_to_hpa
@@ -207,7 +207,9 @@ def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: Attemp
     """Log one practice autorotation and score it at once."""
     _require_editor(session, actor=actor, sortie=sortie)
     _require_draft(sortie)
-    sequence = max((a.sequence for a in sortie.attempts), default=0) + 1
+    # One SQL max, not a load of every attempt of the sortie: logging stays quick as a sortie grows.
+    last = session.scalar(select(func.max(Attempt.sequence)).where(Attempt.sortie_id == sortie.id))
+    sequence = (last or 0) + 1
     standard = standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver)
     attempt = Attempt(sortie=sortie, sequence=sequence, pilot_id=sortie.pilot_id,
                       flown_on=local_date(session, sortie.flown_at), **data.model_dump())
