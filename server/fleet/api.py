@@ -3,6 +3,7 @@ from fastapi import APIRouter
 
 from server.deps import ApiUser, DbSession, require_role
 from server.fleet import service as fleet
+from server.records.idempotency import IdempotentCreate
 from server.fleet.schemas import (
     AircraftCreate,
     AircraftRead,
@@ -22,9 +23,9 @@ def list_types(db: DbSession, person: ApiUser):
 
 
 @router.post("/types", response_model=TypeRead, status_code=201)
-def create_type(data: TypeCreate, db: DbSession, person: ApiUser):
+def create_type(data: TypeCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
     require_role(person, "chief_pilot", "admin")
-    return fleet.type_read(fleet.create_type(db, data=data, actor_id=person.id))
+    return once.run(lambda: fleet.type_read(fleet.create_type(db, data=data, actor_id=person.id)), status_code=201)
 
 
 @router.get("/types/{type_id}", response_model=TypeRead)
@@ -46,9 +47,10 @@ def list_aircraft(db: DbSession, person: ApiUser):
 
 
 @router.post("/aircraft", response_model=AircraftRead, status_code=201)
-def create_aircraft(data: AircraftCreate, db: DbSession, person: ApiUser):
+def create_aircraft(data: AircraftCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
     require_role(person, "chief_pilot", "admin")
-    return fleet.aircraft_read(fleet.create_aircraft(db, data=data, actor_id=person.id))
+    return once.run(lambda: fleet.aircraft_read(fleet.create_aircraft(db, data=data, actor_id=person.id)),
+                    status_code=201)
 
 
 @router.get("/sites", response_model=list[SiteRead])
@@ -57,6 +59,7 @@ def list_sites(db: DbSession, person: ApiUser):
 
 
 @router.post("/sites", response_model=SiteRead, status_code=201)
-def create_site(data: SiteCreate, db: DbSession, person: ApiUser):
+def create_site(data: SiteCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
     require_role(person, "chief_pilot", "admin")
-    return SiteRead.model_validate(fleet.create_site(db, data=data, actor_id=person.id), from_attributes=True)
+    return once.run(lambda: SiteRead.model_validate(fleet.create_site(db, data=data, actor_id=person.id),
+                                                    from_attributes=True), status_code=201)

@@ -91,3 +91,13 @@ def test_five_sends_at_once_create_one_sortie(app, world, db):
     assert [a.status_code for a in answers] == [201] * 5, [a.text for a in answers]
     assert len({a.json()["id"] for a in answers}) == 1
     assert count(db, Sortie) == 1
+
+
+def test_setup_creates_take_a_key_too(chief_client, world, db):
+    from server.fleet.models import Site
+
+    key = str(uuid.uuid4())
+    body = {"name": "North Pad (test)", "elevation_ft": 320}
+    answers = [chief_client.api("POST", "/api/v1/sites", json=body, headers={"Idempotency-Key": key}) for _ in range(3)]
+    assert [a.status_code for a in answers] == [201] * 3 and len({a.json()["id"] for a in answers}) == 1
+    assert count(db, Site) == 2  # the test school's own site and this one
