@@ -140,3 +140,13 @@ def test_an_unknown_maneuver_is_refused_in_words(world, student_client):
     answer = student_client.get(f"/api/v1/people/{world.student.id}/trends?maneuver=loop&termination=touchdown")
     assert answer.status_code == 422
     assert "maneuver" in answer.json()["detail"]
+
+
+def test_rotor_rpm_deviation_is_negative_for_a_droop_and_positive_for_an_overspeed(db, world, student_client):
+    # The test type's power-off limits are 90-108 % NR; %NR counts from normal rotor speed, 100 % (common practice).
+    fly(db, world, [GOOD | {"nr_low_pct": 86, "nr_high_pct": 104}, GOOD | {"nr_low_pct": 95, "nr_high_pct": 110},
+                    GOOD, GOOD | {"point_error_ft": -35}], day=0)
+    metrics = student_client.get(URL.format(world.student.id, "2026-09-30")).json()["metrics"]
+    assert metrics["nr_dev_pct"]["values"] == [-4.0, 2.0, 0.0, 0.0]
+    assert metrics["nr_dev_pct"]["tolerance"] == 9.0  # half the 90-108 range, as the score uses it
+    assert metrics["point_error_ft"]["values"] == [20.0, 20.0, 20.0, -35.0]  # + long, - short, as recorded
