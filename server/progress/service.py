@@ -241,7 +241,7 @@ def standard_used(session: Session, *, pilot_id: int, maneuver: str, points: lis
     if standard is None:
         return StandardUsed(standard_id=None, name="School defaults", **STANDARD_DEFAULTS)
     return StandardUsed(standard_id=standard.id, name=standard.name,
-                        consecutive_needed=standard.consecutive_needed, threshold=standard.threshold,
+                        consecutive_needed=max(1, standard.consecutive_needed), threshold=standard.threshold,
                         decay_days=standard.decay_days)
 
 
