@@ -12,7 +12,7 @@ import json
 from collections.abc import Callable
 from typing import Annotated
 
-from fastapi import Depends, Request, Response
+from fastapi import Depends, Header, Request, Response
 from fastapi.encoders import jsonable_encoder
 from pydantic import BaseModel
 from sqlalchemy import select
@@ -96,8 +96,14 @@ class Once:
         return Response(body, status_code=status_code, media_type="application/json")
 
 
-async def once(request: Request, db: DbSession, person: ApiUser) -> Once:
-    raw = request.headers.get(HEADER)
+KeyHeader = Annotated[str | None, Header(
+    alias=HEADER,
+    description="A key of your choosing (a UUID) that makes a resent create happen once; "
+                "repeats get the first answer, the same key with another body gets 422.",
+)]
+
+
+async def once(request: Request, db: DbSession, person: ApiUser, raw: KeyHeader = None) -> Once:
     key = parse_key(raw) if raw is not None else None
     digest = fingerprint(request.method, request.url.path, await request.body()) if key else ""
     return Once(db, person, key, digest)
