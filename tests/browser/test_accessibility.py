@@ -2,6 +2,7 @@
 import pytest
 from playwright.sync_api import expect
 
+from server.fleet import service as fleet
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
 from server.people.models import Person
@@ -29,6 +30,14 @@ def flagged_sortie(db, world):
 
 def test_sign_in_page(page, world, axe_path):
     page.goto("/signin")
+    assert axe_violations(page, axe_path) == []
+
+
+def test_sign_in_page_of_the_demo_with_its_sign_ins(page, world, db, axe_path):
+    fleet.school(db).demo = True
+    db.commit()
+    page.goto("/signin")
+    expect(page.get_by_role("heading", name="Demo school sign-ins")).to_be_visible()
     assert axe_violations(page, axe_path) == []
 
 
