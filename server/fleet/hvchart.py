@@ -116,7 +116,8 @@ def _marker(parent: ET.Element, axes: Axes, entry: Entry, label: str | None) -> 
     where = "inside the avoid region" if entry.inside else "outside the avoid region"
     group = _el(parent, "g", class_="hv-entry " + ("inside" if entry.inside else "outside"),
                 data_sequence=entry.sequence, data_kias=_fmt(entry.kias), data_height_ft=_fmt(entry.height_ft))
-    _el(group, "title", f"Attempt #{entry.sequence}: {_fmt(entry.kias)} KIAS at {_fmt(entry.height_ft)} ft AGL, {where}")
+    words = f"Attempt #{entry.sequence}: {_fmt(entry.kias)} KIAS at {_fmt(entry.height_ft)} ft AGL, {where}"
+    _el(group, "title", words)
     if entry.inside:  # a triangle as well as a colour, so the difference survives grey print and colour blindness
         _el(group, "polygon", points=f"{x},{y - 9} {x - 8},{y + 6} {x + 8},{y + 6}", fill=AVOID, stroke=INK)
     else:

@@ -131,7 +131,7 @@ def type_page(type_id: int, request: Request, db: DbSession, person: SetupUser, 
             raise NotFound(f"That sortie was not flown in a {row.designation}.")
     if chosen is not None and chosen not in sorties:
         sorties.insert(0, chosen)
-    entries = fleet.hv_entries(row, chosen.attempts) if chosen else []
+    entries = fleet.hv_entries(helicopter=row, attempts=chosen.attempts) if chosen else []
     polygons = [[tuple(p) for p in polygon] for polygon in row.hv_avoid or []]
     zone = ZoneInfo(fleet.school(db).timezone)
     return render(request, "fleet/type_page.html", {

@@ -76,7 +76,7 @@ def change_type(session: Session, *, row: HelicopterType, changes: TypeUpdate, a
     return update_type(session, row=row, data=data, actor_id=actor_id)
 
 
-def hv_entries(helicopter: HelicopterType, attempts) -> list[Entry]:
+def hv_entries(*, helicopter: HelicopterType, attempts) -> list[Entry]:
     """Attempts with a recorded entry point, each marked inside or outside the type's avoid regions."""
     polygons = [[tuple(p) for p in polygon] for polygon in helicopter.hv_avoid or []]
     return [

@@ -77,7 +77,7 @@ def create_standard(session: Session, *, data: StandardCreate, actor_id: int) ->
     return row
 
 
-def merged(row: Standard, changes: StandardUpdate) -> StandardCreate:
+def merged(*, row: Standard, changes: StandardUpdate) -> StandardCreate:
     """The standard with the fields sent changed, checked in full."""
     values = as_data(row) | changes.model_dump(exclude_unset=True)
     try:

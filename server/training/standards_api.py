@@ -37,5 +37,5 @@ def update_standard(standard_id: int, data: StandardUpdate, db: DbSession, perso
     """Change a standard: the answer is the new version; the old one is retired, never rewritten."""
     require_role(person, "chief_pilot", "admin")
     row = standards.get_standard(db, standard_id=standard_id)
-    new = standards.supersede_standard(db, row=row, data=standards.merged(row, data), actor_id=person.id)
+    new = standards.supersede_standard(db, row=row, data=standards.merged(row=row, changes=data), actor_id=person.id)
     return standard_read(db, new)

@@ -3,6 +3,7 @@ from sqlalchemy import select
 
 from server.fleet.models import HelicopterType
 from server.records.models import AuditEvent
+from tests.support import make_sortie
 
 
 def test_get_a_type_with_the_design_fields(instructor_client, world):
@@ -57,7 +58,6 @@ def test_patch_of_a_missing_type_is_404(chief_client):
 
 
 def test_a_changed_type_does_not_rescore_signed_attempts(chief_client, world, db):
-    from tests.support import make_sortie
     sortie = make_sortie(db, world, attempts=1, sign=True)
     before = chief_client.api("GET", f"/api/v1/sorties/{sortie.id}").json()["attempts"][0]
     # Narrow the power-off limits so the recorded 95 % would now be a droop.

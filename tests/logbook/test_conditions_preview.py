@@ -40,7 +40,7 @@ def test_a_pasted_metar_fills_the_fields_and_density_altitude_appears(instructor
     answer = paste(instructor_client, world, "METAR YUDO 221630Z 24008KT 9999 SCT010 17/16 Q1018")
     assert answer.status_code == 200
     filled = inputs(answer.text)
-    assert (filled["wind_dir_deg"], filled["wind_kt"], filled["oat_c"], filled["altimeter"]) == ("240", "8", "17", "1018")
+    assert [filled[name] for name in ("wind_dir_deg", "wind_kt", "oat_c", "altimeter")] == ["240", "8", "17", "1018"]
     assert 'hx-swap-oob="true"' in answer.text
     # About 27 ft per hPa near sea level (common practice): 1018 hPa puts a 500 ft site about 130 ft lower.
     # 17 °C is warmer than ISA there (about 14 °C), so density altitude is above pressure altitude.
