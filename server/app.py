@@ -5,6 +5,7 @@ from fastapi.responses import JSONResponse, RedirectResponse
 from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
+from server.bad_input import refuse_out_of_range
 from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
@@ -15,6 +16,7 @@ from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
 from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
+from server.openapi_errors import describe_errors
 from server.people import api as people_api
 from server.people import routes as people_routes
 from server.progress import api as progress_api
@@ -69,6 +71,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)
     _add_error_handlers(app)
+    describe_errors(app)
+    refuse_out_of_range(app)
     return app
 
 

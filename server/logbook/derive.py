@@ -45,11 +45,15 @@ def conditions(request: ConditionsRequest) -> ConditionsRead:
         filled_from_metar=filled, message=message,
     )
     if fields["elevation_ft"] is not None and altimeter_hpa is not None and fields["oat_c"] is not None:
-        atmosphere = derive_atmosphere(fields["elevation_ft"], altimeter_hpa, fields["oat_c"])
-        out.pressure_altitude_ft = round(atmosphere.pressure_altitude_ft)
-        out.density_altitude_ft = round(atmosphere.density_altitude_ft)
-        out.density_ratio = round(atmosphere.density_ratio, 4)
-        out.isa_temp_c = round(atmosphere.isa_temp_c, 1)
+        try:
+            atmosphere = derive_atmosphere(fields["elevation_ft"], altimeter_hpa, fields["oat_c"])
+        except ValueError as error:  # e.g. a METAR's altimeter setting outside the accepted range
+            out.message = str(error)
+        else:
+            out.pressure_altitude_ft = round(atmosphere.pressure_altitude_ft)
+            out.density_altitude_ft = round(atmosphere.density_altitude_ft)
+            out.density_ratio = round(atmosphere.density_ratio, 4)
+            out.isa_temp_c = round(atmosphere.isa_temp_c, 1)
     if (fields["wind_dir_deg"] is not None and fields["wind_kt"] is not None
             and fields["landing_dir_deg"] is not None):
         wind = wind_components(wind_dir_deg=fields["wind_dir_deg"], wind_kt=fields["wind_kt"],

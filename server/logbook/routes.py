@@ -5,7 +5,7 @@ from zoneinfo import ZoneInfo
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import HTMLResponse, RedirectResponse
 
-from server.deps import DbSession, PageUser
+from server.deps import DbSession, PageUser, require_role
 from server.errors import Invalid
 from server.fleet import service as fleet
 from server.fleet.models import Site
@@ -60,6 +60,7 @@ def sortie_list(request: Request, db: DbSession, person: PageUser, offset: int =
 
 @router.get("/sorties/new", name="sortie_new")
 def sortie_new(request: Request, db: DbSession, person: PageUser):
+    require_role(person, "instructor", "chief_pilot")  # the only people who may start one
     now = datetime.now(_timezone(db)).strftime("%Y-%m-%dT%H:%M")
     return render(request, "logbook/sortie_new.html", {
         "person": person, "values": {"flown_at": now, "altimeter_unit": "hPa"}, "errors": {},

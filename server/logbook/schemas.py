@@ -18,7 +18,8 @@ KG_PER_LB = 0.45359237  # exact, by definition of the international pound
 class ConditionsFields(BaseModel):
     oat_c: float | None = Field(default=None, ge=-60, le=60, description="outside air temperature, °C")
     altimeter_hpa: float | None = Field(default=None, ge=850, le=1100)
-    altimeter_inhg: float | None = Field(default=None, ge=25.1, le=32.5)
+    # 25.11 to 32.48 inHg stays inside 850 to 1100 hPa once converted (25.1 inHg is 849.98 hPa).
+    altimeter_inhg: float | None = Field(default=None, ge=25.11, le=32.48)
     wind_dir_deg: float | None = Field(default=None, ge=0, le=360)
     wind_kt: float | None = Field(default=None, ge=0, le=150)
     gust_kt: float | None = Field(default=None, ge=0, le=200)
