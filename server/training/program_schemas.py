@@ -1,9 +1,15 @@
 """Shapes of programs (syllabi), enrolments, lesson confirmations and stage checks."""
 from datetime import date, datetime
 
-from pydantic import BaseModel, ConfigDict, Field
+from typing import Annotated
+
+from pydantic import BaseModel, ConfigDict, Field, StringConstraints
 
 from server.logbook.schemas import Maneuver, Termination
+
+# Surrounding spaces are dropped before the length is checked, so a blank name is refused.
+Name = Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=120)]
+Level = Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=40)]
 
 
 class RequirementWrite(BaseModel):
@@ -18,14 +24,14 @@ class RequirementWrite(BaseModel):
 class LessonWrite(BaseModel):
     model_config = ConfigDict(extra="forbid")
     id: int | None = None
-    name: str = Field(min_length=1, max_length=120)
+    name: Name
     requirements: list[RequirementWrite] = Field(default_factory=list, max_length=20)
 
 
 class StageWrite(BaseModel):
     model_config = ConfigDict(extra="forbid")
     id: int | None = None
-    name: str = Field(min_length=1, max_length=120)
+    name: Name
     lessons: list[LessonWrite] = Field(default_factory=list, max_length=50)
 
 
@@ -33,9 +39,9 @@ class ProgramWrite(BaseModel):
     """A whole syllabus: stages in order, their lessons in order, and what each lesson asks."""
 
     model_config = ConfigDict(extra="forbid")
-    name: str = Field(min_length=1, max_length=120)
-    level: str = Field(default="private", min_length=1, max_length=40,
-                       description="the program level that picks the standards, e.g. private or recurrent")
+    name: Name
+    level: Level = Field(default="private",
+                         description="the program level that picks the standards, e.g. private or recurrent")
     description: str = Field(default="", max_length=4000)
     stages: list[StageWrite] = Field(default_factory=list, max_length=30)
 
