@@ -1,4 +1,5 @@
 """Database engine, declarative base and sessions."""
+import threading
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -31,22 +32,46 @@ def _sqlite_pragmas(dbapi_connection, _record) -> None:
     cursor.close()
 
 
-# Execution option that marks a connection whose transactions write (see _sqlite_begin).
+# Execution option that marks a connection whose transactions write (see _SQLiteWriters).
 WRITES = {"flarebook_writes": True}
 
 
-def _sqlite_begin(connection) -> None:
-    """Begin a writing transaction with BEGIN IMMEDIATE; leave read-only ones to pysqlite."""
-    dbapi_connection = connection.connection.dbapi_connection
-    if connection.get_execution_options().get("flarebook_writes"):
-        # Take the write lock when the transaction starts, so writers queue on busy_timeout instead of
-        # one failing with SQLITE_BUSY when it upgrades a read (SQLite docs: "BEGIN IMMEDIATE", WAL;
-        # SQLAlchemy docs: pysqlite "serializable isolation" recipe).
+class _SQLiteWriters:
+    """Writing transactions begin with BEGIN IMMEDIATE, and take turns inside this process.
+
+    BEGIN IMMEDIATE takes SQLite's one write lock when the transaction starts, so a writer never fails
+    with SQLITE_BUSY when it upgrades a read (SQLite docs: "BEGIN IMMEDIATE", WAL; SQLAlchemy docs:
+    pysqlite "serializable isolation"). Waiters on SQLite's lock poll with growing sleeps, which
+    starves some of them under load; threads of this process wait on a lock of ours instead, handed
+    on when the connection goes back to the pool. Other processes still meet busy_timeout.
+    """
+
+    FLAG = "flarebook_writer"
+
+    def __init__(self):
+        self.lock = threading.Lock()
+
+    def begin(self, connection) -> None:
+        dbapi_connection = connection.connection.dbapi_connection
+        if not connection.get_execution_options().get("flarebook_writes"):
+            # pysqlite's own behaviour: reads see the latest commit, BEGIN comes before the first change.
+            dbapi_connection.isolation_level = ""
+            return
+        connection.info[self.FLAG] = self.lock.acquire(timeout=10)
         dbapi_connection.isolation_level = None
-        connection.exec_driver_sql("BEGIN IMMEDIATE")
-    else:
-        # pysqlite's own behaviour: reads see the latest commit, BEGIN comes before the first change.
-        dbapi_connection.isolation_level = ""
+        try:
+            connection.exec_driver_sql("BEGIN IMMEDIATE")
+        except BaseException:
+            self._release(connection.info)
+            raise
+
+    def done(self, _dbapi_connection, record, *_exception) -> None:
+        """The connection is back in the pool (committed or rolled back) or thrown away."""
+        self._release(record.info)
+
+    def _release(self, info: dict) -> None:
+        if info.pop(self.FLAG, False):
+            self.lock.release()
 
 
 def begin_writing(session: Session) -> None:
@@ -62,7 +87,10 @@ def make_engine(url: str) -> Engine:
             Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
         engine = create_engine(url, connect_args={"check_same_thread": False, "timeout": 10})
         event.listen(engine, "connect", _sqlite_pragmas)
-        event.listen(engine, "begin", _sqlite_begin)
+        writers = _SQLiteWriters()
+        event.listen(engine, "begin", writers.begin)
+        event.listen(engine.pool, "checkin", writers.done)
+        event.listen(engine.pool, "invalidate", writers.done)
         return engine
     return create_engine(url, pool_pre_ping=True, pool_size=10, max_overflow=20)
 
