@@ -10,8 +10,8 @@ from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
 from zoneinfo import ZoneInfo
 
-from sqlalchemy import Integer, and_, cast, exists, func, literal_column, select, true
-from sqlalchemy.orm import Session, aliased
+from sqlalchemy import Integer, and_, case, cast, exists, func, literal_column, select, true
+from sqlalchemy.orm import Session, aliased, selectinload
 
 from server.errors import Invalid
 from server.fleet import service as fleet
@@ -165,21 +165,20 @@ def digest(session: Session, *, date_from: date | None = None, date_to: date | N
 
 
 def _table(session: Session, name: str, date_from: date, date_to: date) -> list[DigestRow]:
+    """One grouped query per dimension: attempts, attempts with each flag, attempts with any of them."""
     key = _dimension(session, name).label("key")
-    attempts = session.execute(
-        _base(session, key, func.count(Attempt.id), date_from=date_from, date_to=date_to).group_by(key)
-    ).all()
-    flagged, code = _with_flags(session, _base(session, key, date_from=date_from, date_to=date_to))
-    per_code = session.execute(
-        flagged.add_columns(code.label("code"), func.count(Attempt.id.distinct())).group_by(key, code)
-    ).all()
-    any_flag = session.execute(flagged.add_columns(func.count(Attempt.id.distinct())).group_by(key)).all()
-
-    rows = {_key_text(value): DigestRow(key=_key_text(value), label="", attempts=count) for value, count in attempts}
-    for value, flag_code, count in per_code:
-        rows[_key_text(value)].counts[flag_code] = count
-    for value, count in any_flag:
-        rows[_key_text(value)].counts[ANY_FLAG] = count
+    elements, code = _flag_code_rows(session)
+    counts = [func.count(Attempt.id.distinct())]
+    counts += [func.count(case((code == flag, Attempt.id)).distinct()) for flag in FLAG_CODES]
+    counts.append(func.count(case((code.in_(FLAG_CODES), Attempt.id)).distinct()))
+    # The outer join keeps attempts without flags: one row each, with a NULL code.
+    query = (_base(session, key, *counts, date_from=date_from, date_to=date_to)
+             .outerjoin(elements, true()).group_by(key))
+    rows = {}
+    for value, attempts, *flagged in session.execute(query):
+        row = DigestRow(key=_key_text(value), label="", attempts=attempts,
+                        counts=dict(zip((*FLAG_CODES, ANY_FLAG), flagged, strict=True)))
+        rows[row.key] = row
     labels = _labels(session, name, list(rows))
     for row in rows.values():
         row.label = labels.get(row.key, row.key)
@@ -263,7 +262,7 @@ def flagged_attempts(session: Session, *, by: str | None = None, key: str | None
         query = query.where(expression.is_(None) if value is None else expression == value)
     ids = list(session.scalars(query.distinct()))
     attempts = list(session.scalars(
-        select(Attempt).where(Attempt.id.in_(ids))
+        select(Attempt).where(Attempt.id.in_(ids)).options(selectinload(Attempt.sortie))
         .order_by(Attempt.flown_on.desc(), Attempt.sortie_id.desc(), Attempt.sequence).limit(MAX_LISTED)
     ))
     return [FlaggedAttempt(attempt=a, sortie=a.sortie) for a in attempts], len(ids) > MAX_LISTED
