@@ -23,7 +23,7 @@ from server.db import make_engine, make_session_factory
 from server.records import audit
 from tests.support import PASSWORD
 
-ROUNDS = 12
+ROUNDS = 10
 ATTEMPT = {"maneuver": "straight_in", "termination": "touchdown", "flare_height_ft": 88, "touchdown_speed_kt": 3}
 
 
@@ -150,9 +150,14 @@ def test_killing_the_server_loses_no_answered_write(file_school):
             try:
                 wait_until_up(base, school.token, pid)
                 writers = [Writer(base, school.token, school.world, done) for _ in range(3)]
+                answered = len(done["attempts"])
                 for w in writers:
                     w.start()
-                time.sleep(rng.uniform(0.05, 1.0))
+                # Kill at a random moment once writing is under way (a loaded machine starts slowly).
+                deadline = time.monotonic() + 15
+                while len(done["attempts"]) == answered and time.monotonic() < deadline:
+                    time.sleep(0.01)
+                time.sleep(rng.uniform(0.0, 0.8))
             finally:
                 kill(pid)
             for w in writers:
