@@ -1,6 +1,9 @@
 """axe-core finds no accessibility violations on the progress file and the program setup page."""
 import pytest
 
+from server.people.models import Person
+from server.training import programs
+from server.training.program_schemas import ProgramWrite
 from tests.browser.conftest import (  # noqa: F401  (fixtures shared with the browser tests)
     axe_path,
     axe_violations,
@@ -11,9 +14,6 @@ from tests.browser.conftest import (  # noqa: F401  (fixtures shared with the br
     live_server,
     sign_in,
 )
-from server.people.models import Person
-from server.training import programs
-from server.training.program_schemas import ProgramWrite
 from tests.progress.helpers import GOOD, POOR, fly, recently
 from tests.training.test_programs import SYLLABUS
 
