@@ -19,3 +19,11 @@ document.addEventListener("htmx:configRequest", function (event) {
     event.detail.headers["HX-Trigger-Name"] = source.name;
   }
 });
+
+document.addEventListener("change", function (event) {
+  // The site sets the field elevation, so picking another one refreshes the density altitude too.
+  var conditions = document.getElementById("conditions");
+  if (event.target.name === "site_id" && conditions && window.htmx) {
+    window.htmx.trigger(conditions, "change");
+  }
+});

@@ -4,6 +4,7 @@ import re
 import pytest
 from playwright.sync_api import expect
 
+from server.fleet.models import Site
 from tests.browser.conftest import sign_in
 from tests.support import PASSWORD
 
@@ -180,3 +181,18 @@ def test_an_impossible_temperature_is_refused_in_the_readout_as_it_is_typed(page
     expect(readout.locator(".notice-error")).to_contain_text("temperature")
     expect(page.locator("#density-altitude")).to_have_text("—")
     assert [e for e in errors if "500" in e] == []
+
+
+def test_picking_another_site_after_the_conditions_refreshes_the_altitudes(page, world, db):
+    db.add(Site(name="Ridge Test Pad", elevation_ft=6000, landing_dirs_deg=[180]))
+    db.commit()
+    sign_in(page, world.instructor.email)
+    page.goto("/sorties/new")
+    page.get_by_label("Site").select_option(label=f"{world.site.name} (500 ft)")
+    page.get_by_label("Outside air temperature").press_sequentially("15")
+    page.get_by_label("Altimeter setting").press_sequentially("1013.25")
+    expect(page.locator("#pressure-altitude")).to_have_text("500 ft")
+    keep_marker(page)
+    page.get_by_label("Site").select_option(label="Ridge Test Pad (6,000 ft)")
+    expect(page.locator("#pressure-altitude")).to_have_text("6,000 ft")  # standard altimeter: PA is elevation
+    assert same_page(page)
