@@ -37,7 +37,7 @@ PEOPLE = [
 STUDENTS = {
     "ada": ("ines", 24, 0, 1.0),
     "bram": ("ines", 20, 1, 0.7),
-    "carys": ("tomas", 26, 13, 0.8),  # stopped flying three months ago: lapsed and rusty
+    "carys": ("tomas", 30, 12, 1.6),  # reached standard, then stopped flying three months ago: lapsed and rusty
     "dev": ("tomas", 10, 0, 0.5),
     "elin": ("ines", 3, 0, 0.3),  # just started
 }
@@ -132,8 +132,9 @@ def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, pro
             descent_kias=None if hovering else round(65 + rng.gauss(0, 8 * (1.2 - skill))),
             nr_low_pct=None if hovering else round(rng.uniform(84, 89) if low_rpm else rng.uniform(92, 98), 1),
             nr_high_pct=None if hovering else round(rng.uniform(100, 106), 1),
-            flare_height_ft=None if hovering else max(20, round(rng.gauss(95, 10 + 35 * (1 - skill)))),
-            touchdown_speed_kt=round(max(0.0, rng.gauss(2 + 10 * (1 - skill), 2)), 1),
+            flare_height_ft=None if hovering else max(20, round(rng.gauss(92, 6 + 35 * (1 - skill)))),
+            touchdown_speed_kt=round(max(0.0, rng.gauss(0.5 + 4 * (1 - skill), 0.7) if hovering
+                                     else rng.gauss(2 + 10 * (1 - skill), 2)), 1),
             point_error_ft=round(rng.gauss(0, 40 + 220 * (1 - skill))) if termination == "touchdown" else None,
             heading_error_deg=round(rng.gauss(0, 3 + 10 * (1 - skill))),
             takeover=takeover,
