@@ -9,7 +9,7 @@ from server.deps import DbSession, PageUser, require_role
 from server.errors import Invalid
 from server.fleet import service as fleet
 from server.fleet.models import Site
-from server.forms import blank_to_none, validate
+from server.forms import blank_to_none, plain, validate
 from server.logbook import derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
@@ -125,8 +125,8 @@ async def conditions_preview(request: Request, db: DbSession, person: PageUser):
         context["readout"] = {"message": message or "These conditions need a look:", "filled_from_metar": []}
     response = render(request, "logbook/_conditions_readout.html", context)
     if readout is not None and readout.filled_from_metar and request.headers.get("HX-Trigger-Name") == "metar":
-        filled = {k: _plain(getattr(readout, k)) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}
-        filled["altimeter"] = _plain(round(readout.altimeter_hpa, 1)) if readout.altimeter_hpa else values.get("altimeter_hpa")
+        filled = {k: plain(getattr(readout, k)) for k in ("oat_c", "wind_dir_deg", "wind_kt", "gust_kt")}
+        filled["altimeter"] = plain(round(readout.altimeter_hpa, 1)) if readout.altimeter_hpa else values.get("altimeter_hpa")
         filled["altimeter_unit"] = "hPa"
         filled["takeoff_weight_lb"] = values.get("takeoff_weight_lb")
         fields = render(request, "logbook/_conditions_fields.html", {"values": filled, "errors": {}, "oob": True})
@@ -165,17 +165,10 @@ def _new_attempt_context(sortie: Sortie, previous: Attempt | None) -> dict:
     values = {}
     if previous is not None:
         values = {"maneuver": previous.maneuver, "termination": previous.termination,
-                  "landing_dir_deg": _plain(previous.landing_dir_deg), "entry_height_ft": _plain(previous.entry_height_ft),
-                  "entry_kias": _plain(previous.entry_kias)}
+                  "landing_dir_deg": plain(previous.landing_dir_deg), "entry_height_ft": plain(previous.entry_height_ft),
+                  "entry_kias": plain(previous.entry_kias)}
     return {"values": values, "errors": {}, "landing_dirs": sortie.site.landing_dirs_deg or [],
             "next_sequence": max((a.sequence for a in sortie.attempts), default=0) + 1}
-
-
-def _plain(value):
-    """Show 270.0 as 270 in a form."""
-    if isinstance(value, float) and value.is_integer():
-        return int(value)
-    return value
 
 
 @router.get("/sorties/{sortie_id}", name="sortie_sheet")
@@ -226,7 +219,7 @@ async def attempt_add(sortie_id: int, request: Request, db: DbSession, person: P
 @router.get("/attempts/{attempt_id}/edit", name="attempt_edit_form")
 def attempt_edit_form(attempt_id: int, request: Request, db: DbSession, person: PageUser):
     attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
-    values = {name: _plain(getattr(attempt, name)) for name in ATTEMPT_NAMES}
+    values = {name: plain(getattr(attempt, name)) for name in ATTEMPT_NAMES}
     return render(request, "logbook/_attempt_form.html", {
         "sortie": attempt.sortie, "values": values, "errors": {}, "attempt_id": attempt.id,
         "sequence": attempt.sequence, "landing_dirs": attempt.sortie.site.landing_dirs_deg or [],
