@@ -27,7 +27,7 @@ from server.training import api as training_api
 from server.training import routes as training_routes
 from server.records import routes as records_routes
 from server.records.refusals import record_refusal
-from server.records.write_queue import SQLiteWriterQueue
+from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
@@ -48,8 +48,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
 
-    if app.state.engine.dialect.name == "sqlite":
-        app.add_middleware(SQLiteWriterQueue)  # writing requests take turns instead of polling the file lock
+    app.add_middleware(WriterQueue)  # writing requests take turns: see server/records/write_queue.py
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")

@@ -1,12 +1,16 @@
-"""On SQLite, requests that write take turns in arrival order before they touch the database.
+"""Requests that write take turns, in arrival order, before they reach a worker thread.
 
-SQLite has one writer at a time. Left to the file lock, writing requests each hold a worker thread
-and poll on busy_timeout with growing sleeps, so under load the lock sits idle between writers and
-the slowest requests wait for seconds. Queued here (asyncio.Lock wakes waiters first come, first
-served), a writing request starts only when the one before it has committed, and reads carry on
-beside them. The request body is read before queueing, so a slow upload does not hold up the rest.
-Correctness does not rest on this queue (writers still begin with BEGIN IMMEDIATE); it only
-keeps them from polling. Not used on PostgreSQL, where writers run side by side.
+Every writing request appends to the audit chain, and appends are serial by design (SQLite has one
+writer; on PostgreSQL an advisory lock queues them), so letting many writing requests into the
+thread pool at once gains nothing and costs a lot: on SQLite each waiter polls the file lock with
+growing sleeps, so the lock sits idle between writers and the slowest wait for seconds; on PostgreSQL
+waiters for the lock, or for a pooled connection, can hold every worker thread while the lock holder
+waits for one to commit, until the pool times out. Queued here (asyncio.Lock wakes waiters first
+come, first served), a writing request starts once the one before it has answered, and reads carry
+on beside them. The body is read before queueing, so a slow upload does not hold up the rest.
+Correctness does not rest on this queue (writers still begin with BEGIN IMMEDIATE on SQLite and take
+the advisory lock on PostgreSQL, and several app servers each have their own queue); it keeps them
+from waiting in threads.
 """
 import asyncio
 import weakref
@@ -16,7 +20,7 @@ from starlette.types import ASGIApp, Message, Receive, Scope, Send
 WRITING_METHODS = {"POST", "PUT", "PATCH", "DELETE"}
 
 
-class SQLiteWriterQueue:
+class WriterQueue:
     def __init__(self, app: ASGIApp):
         self.app = app
         # One queue per event loop: a server has one; test clients may each run their own.
