@@ -163,23 +163,15 @@ async def program_edit(program_id: int, request: Request, db: DbSession, person:
     program = programs.get_program(db, program_id)
     form = await request.form()
     edit = EDITS.get(str(form.get("action", "")))
-    try:
+
+    def change():
         if edit is None:
             raise Invalid("Unknown change.")
         record = _plain_write(programs.program_record(program))
         edit(record, form)
-        data = ProgramWrite.model_validate(record)
-        programs.update_program(db, actor=person, program=program, data=data)
-    except ValidationError as error:
-        message, status = _validation_message(error), 422
-    except FlarebookError as error:
-        message, status = error.message, error.status_code
-    else:
-        return RedirectResponse(request.url_for("program_page", program_id=program.id), status_code=303)
-    db.rollback()
-    program = programs.get_program(db, program_id)
-    return render(request, "training/program.html", {**_program_context(db, person, program), "message": message},
-                  status_code=status)
+        programs.update_program(db, actor=person, program=program, data=ProgramWrite.model_validate(record))
+
+    return _change_program(request, db, person, program_id, change)
 
 
 @router.post("/programs/{program_id}/enrol", name="program_enrol")
@@ -188,14 +180,23 @@ async def program_enrol(program_id: int, request: Request, db: DbSession, person
     form = await request.form()
     values = {"student_id": form.get("student_id") or None, "instructor_id": form.get("instructor_id") or None,
               "started_on": form.get("started_on") or None}
-    try:
+
+    def change():
         programs.enrol(db, actor=person, program=program, data=EnrolmentCreate.model_validate(values))
+
+    return _change_program(request, db, person, program_id, change)
+
+
+def _change_program(request: Request, db, person: Person, program_id: int, change):
+    """Make one change and go back to the program; on a refusal, show the page again with the reason."""
+    try:
+        change()
     except ValidationError as error:
         message, status = _validation_message(error), 422
     except FlarebookError as error:
         message, status = error.message, error.status_code
     else:
-        return RedirectResponse(request.url_for("program_page", program_id=program.id), status_code=303)
+        return RedirectResponse(request.url_for("program_page", program_id=program_id), status_code=303)
     db.rollback()
     program = programs.get_program(db, program_id)
     return render(request, "training/program.html", {**_program_context(db, person, program), "message": message},
