@@ -57,7 +57,7 @@ def flights(db, world):
     draft = flown(db, world, [LOW_RPM, LOW_RPM], sign=False, when=datetime(2026, 11, 6, 9, tzinfo=UTC))
     amended = flown(db, world, [FAST], when=datetime(2026, 11, 7, 9, tzinfo=UTC))
     actor = db.get(Person, world.instructor.id)
-    second = logbook.amend_sortie(db, actor=actor, sortie=amended, reason="touchdown speed re-read from the video log")
+    second = logbook.amend_sortie(db, actor=actor, sortie=amended, reason="touchdown speed re-read from the flight data log")
     db.flush()
     db.refresh(second)
     logbook.record_instructor_signature(db, actor=actor, sortie=second)
