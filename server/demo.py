@@ -96,11 +96,12 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
             draft = week == 0 and key == "ada"
             count += _sortie(session, rng, who[instructor], who[key], rng.choice(aircraft), rng.choice(sites),
                              flown, progress, sign=not draft)
-    # Recurrent training: the instructors fly with the chief pilot.
-    for key, weeks in (("ines", (22, 9, 2)), ("tomas", (25, 15))):
+    # Recurrent training: the instructors fly with the chief pilot, and the chief pilot with Ines.
+    for key, instructor, weeks in (("ines", "chief", (22, 9, 2)), ("tomas", "chief", (25, 15)),
+                                   ("chief", "ines", (20, 7))):
         for week in weeks:
             flown = today - timedelta(weeks=week, days=1)
-            count += _sortie(session, rng, who["chief"], who[key], aircraft[0], sites[0], flown, 1.0, sign=True)
+            count += _sortie(session, rng, who[instructor], who[key], aircraft[0], sites[0], flown, 1.0, sign=True)
     return f"Loaded {SCHOOL_NAME}: {len(PEOPLE)} people, {count} practice autorotations. Password: {DEMO_PASSWORD}"
 
 
@@ -145,7 +146,9 @@ def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, pro
     session.flush()
     session.refresh(sortie)
     if sign:
-        logbook.record_instructor_signature(session, actor=instructor, sortie=sortie)
+        signature = logbook.record_instructor_signature(session, actor=instructor, sortie=sortie)
+        # Signed at the debrief, not when the demo was loaded (the audit entry keeps the load time).
+        signature.signed_at = when + timedelta(hours=2)
     return n
 
 

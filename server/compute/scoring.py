@@ -100,6 +100,8 @@ class Observation:
     heading_error_deg: float | None = None
     takeover: bool = False
     grade: str | None = None
+    # "power_recovery", "to_hover", "touchdown" or None when not known.
+    termination: str | None = None
 
     def __post_init__(self) -> None:
         non_negative = {
@@ -247,7 +249,9 @@ def _flags(observation: Observation, limits: TypeLimits, touchdown_max_kt: float
         )
         flags.append(Flag("hv_avoid", message))
     touchdown_kt = observation.touchdown_speed_kt
-    if touchdown_kt is not None and touchdown_kt > touchdown_max_kt:
+    # A power recovery ends in flight: its groundspeed is scored, but it is no touchdown to flag.
+    lands = observation.termination != "power_recovery"
+    if lands and touchdown_kt is not None and touchdown_kt > touchdown_max_kt:
         message = (
             f"Touchdown at {_fmt(touchdown_kt)} kt was faster than "
             f"the maximum of {_fmt(touchdown_max_kt)} kt."

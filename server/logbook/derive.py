@@ -117,7 +117,7 @@ def score(attempt: Attempt, sortie: Sortie, standard: Standard | None) -> None:
         attempt.headwind_kt, attempt.crosswind_kt = round(wind.headwind_kt, 1), round(wind.crosswind_kt, 1)
     observation = Observation(
         **{name: getattr(attempt, name) for name in OBSERVED_FIELDS},
-        takeover=attempt.takeover, grade=attempt.grade,
+        takeover=attempt.takeover, grade=attempt.grade, termination=attempt.termination,
     )
     result = score_attempt(observation=observation, limits=type_limits(helicopter),
                            tolerances=tolerances(standard),

@@ -193,6 +193,17 @@ def test_school_touchdown_maximum_replaces_the_types():
     assert "the maximum of 3 kt" in result.flags[-1].message
 
 
+@pytest.mark.parametrize(("termination", "flagged"),
+                         [("touchdown", True), ("to_hover", True), (None, True), ("power_recovery", False)])
+def test_only_an_arrival_at_the_ground_or_a_hover_is_flagged_as_a_fast_touchdown(termination, flagged):
+    # Common practice: a power recovery ends in flight, so its groundspeed is no touchdown; the
+    # figure still scores against the maximum (DESIGN 4.4), only the safety flag is withheld.
+    fast = dataclasses.replace(GOOD, touchdown_speed_kt=15.0, termination=termination)
+    result = score(fast)
+    assert ("fast_touchdown" in codes(result)) is flagged
+    assert result.parts["touchdown_speed"].deviation == pytest.approx(15.0 - LIMITS.touchdown_speed_max_kt)
+
+
 def test_nothing_recorded_gives_no_score_and_no_verdict_from_figures():
     result = score(Observation())
     assert result.score is None and result.parts == {}
