@@ -34,6 +34,7 @@ class Standing:
     qualifying_count: int
     needed: int
     remedy: str
+    warn_days: int  # the rule's warning lead time, for calendar reminders
 
     @property
     def label(self) -> str:
@@ -103,7 +104,8 @@ def standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | 
         status = evaluation.status_for(rule, summary, as_of=as_of, words=words[rule.id])
         out.append(Standing(person_id=person_id, name=name, roles=roles, rule_id=rule.id, rule_name=rule.name,
                             status=status.status, current_until=status.current_until,
-                            qualifying_count=status.qualifying_count, needed=status.needed, remedy=status.remedy))
+                            qualifying_count=status.qualifying_count, needed=status.needed, remedy=status.remedy,
+                            warn_days=rule.warn_days))
     out.sort(key=Standing.sort_key)
     return out
 

@@ -72,7 +72,8 @@ def feed_standings(session: Session, feed: CalendarFeed, *, as_of: date) -> list
 
 
 def calendar_bytes(rows: list[board.Standing], *, name: str, made_at: datetime) -> bytes:
-    """One all-day event per person and rule on the last day they are current, with a reminder."""
+    """One all-day event per person and rule on the last day they are current, with a reminder
+    as far ahead as the rule's warning lead time (at least a day)."""
     calendar = Calendar()
     calendar.add("prodid", PRODID)
     calendar.add("version", "2.0")
@@ -93,7 +94,7 @@ def calendar_bytes(rows: list[board.Standing], *, name: str, made_at: datetime) 
             alarm = Alarm()
             alarm.add("action", "DISPLAY")
             alarm.add("description", f"Currency ends soon: {row.rule_name} ({row.name})")
-            alarm.add("trigger", timedelta(days=-7))
+            alarm.add("trigger", timedelta(days=-max(row.warn_days, 1)))
             event.add_component(alarm)
         calendar.add_component(event)
     return calendar.to_ical()

@@ -2,7 +2,7 @@
 import csv
 import io
 import re
-from datetime import UTC, date, datetime
+from datetime import UTC, date, datetime, timedelta
 from html.parser import HTMLParser
 
 from icalendar import Calendar
@@ -163,6 +163,10 @@ def test_calendar_feed_parses_and_holds_the_due_dates(chief_client, anonymous, w
     assert ("Last day current: Touchdowns every 30 days (Sam Student)", date(2026, 12, 1)) in events
     assert ("Last day current: Instructors: any, 90 days (Ivo Instructor)", date(2027, 1, 18)) in events
     assert len(events) == 3  # the never-done rows have no date
+    # Each reminder comes as far ahead as its rule's warning lead time (RFC 5545 VALARM, relative TRIGGER).
+    reminders = {str(e["summary"]): [a["trigger"].dt for a in e.walk("VALARM")] for e in calendar.walk("VEVENT")}
+    assert reminders["Last day current: Touchdowns every 30 days (Sam Student)"] == [timedelta(days=-7)]
+    assert reminders["Last day current: Instructors: any, 90 days (Ivo Instructor)"] == [timedelta(days=-14)]
 
 
 def test_revoked_link_is_gone_and_students_get_only_their_own(student_client, anonymous, world, db, chief_client):
