@@ -173,7 +173,7 @@ NEW_RULE_DEFAULTS = {"window": 90, "window_unit": "days", "min_count": 1, "warn_
 
 @router.get("/currency/rules", name="currency_rules")
 def currency_rules(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot")
+    require_role(person, "chief_pilot", "admin")
     return _rules_page(request, db, person, values=NEW_RULE_DEFAULTS, errors={}, message=None)
 
 
@@ -189,7 +189,7 @@ async def _submitted_rule(request: Request, db) -> tuple[RuleCreate | None, dict
 
 @router.post("/currency/rules", name="currency_rule_create")
 async def currency_rule_create(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot")
+    require_role(person, "chief_pilot", "admin")
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
         try:
@@ -204,7 +204,7 @@ async def currency_rule_create(request: Request, db: DbSession, person: PageUser
 
 @router.get("/currency/rules/{rule_id}", name="currency_rule_edit")
 def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot")
+    require_role(person, "chief_pilot", "admin")
     rule = rules_service.get_rule(db, rule_id=rule_id)
     return render(request, "currency/rule_edit.html", {
         "person": person, "rule": rule, "values": _rule_values_for_form(rule), "errors": {}, "message": None,
@@ -214,7 +214,7 @@ def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_i
 
 @router.post("/currency/rules/{rule_id}", name="currency_rule_update")
 async def currency_rule_update(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot")
+    require_role(person, "chief_pilot", "admin")
     rule = rules_service.get_rule(db, rule_id=rule_id)
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
@@ -232,7 +232,7 @@ async def currency_rule_update(request: Request, db: DbSession, person: PageUser
 
 @router.post("/currency/rules/{rule_id}/delete", name="currency_rule_delete")
 def currency_rule_delete(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot")
+    require_role(person, "chief_pilot", "admin")
     rules_service.delete_rule(db, actor=person, rule=rules_service.get_rule(db, rule_id=rule_id))
     return RedirectResponse(request.url_for("currency_rules"), status_code=303)
 

@@ -18,8 +18,9 @@ _MANEUVER_WORDS = {"straight_in": "straight-in", "turn_180": "180° turn", "turn
 
 
 def require_chief(actor: Person) -> None:
-    if not actor.has_role("chief_pilot"):
-        raise Forbidden("Only a chief pilot can change currency rules.")
+    """Rules are setup: chief pilots and administrators keep them (DESIGN section 5)."""
+    if not actor.has_role("chief_pilot", "admin"):
+        raise Forbidden("Only a chief pilot or an administrator can change currency rules.")
 
 
 def list_rules(session: Session) -> list[CurrencyRule]:
