@@ -19,11 +19,13 @@ if [ ! -f .cache/npm/node_modules/axe-core/axe.min.js ]; then
   npm install --silent --no-audit --no-fund --prefix .cache/npm axe-core@4.11.0 >/dev/null
 fi
 
-echo "== all tests on SQLite"
-.venv/bin/pytest "$@"
+postgres_url="${FLAREBOOK_TEST_DATABASE_URL:-}"
 
-if [ -n "${FLAREBOOK_TEST_DATABASE_URL:-}" ]; then
+echo "== all tests on SQLite"
+env -u FLAREBOOK_TEST_DATABASE_URL .venv/bin/pytest "$@"
+
+if [ -n "$postgres_url" ]; then
   echo "== all tests that touch the database, on PostgreSQL"
   # The pure computations in tests/compute have no database and ran above.
-  .venv/bin/pytest --ignore=tests/compute "$@"
+  FLAREBOOK_TEST_DATABASE_URL="$postgres_url" .venv/bin/pytest --ignore=tests/compute "$@"
 fi
