@@ -21,10 +21,13 @@ STATE_LABELS = {
 }
 
 
-def _fmt(value, digits: int = 0, unit: str = "") -> str:
+def _fmt(value, digits: int = 0, unit: str = "", *, trim: bool = False) -> str:
+    """A figure with thousands separators; `trim` drops trailing zeros (12.0 kt reads 12 kt)."""
     if value is None:
         return "—"
     text = f"{value:,.{digits}f}"
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
     return f"{text} {unit}".strip()
 
 
