@@ -1,5 +1,6 @@
 """Builders for the invented test school; every name and figure is invented for the tests."""
 from dataclasses import dataclass
+from html.parser import HTMLParser
 from datetime import UTC, datetime
 
 from sqlalchemy.orm import Session
@@ -72,3 +73,21 @@ def make_sortie(session: Session, world: World, *, instructor: Person | None = N
         logbook.record_instructor_signature(session, actor=actor, sortie=sortie)
     session.commit()
     return sortie
+
+
+class _InputValues(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.values = {}
+
+    def handle_starttag(self, tag, attrs):
+        attrs = dict(attrs)
+        if tag == "input" and "name" in attrs:
+            self.values[attrs["name"]] = attrs.get("value")
+
+
+def input_values(html: str) -> dict:
+    """name -> value of every input in a page or fragment, as a browser would submit it."""
+    parser = _InputValues()
+    parser.feed(html)
+    return parser.values

@@ -2,26 +2,8 @@
 an unreadable one says so and fills nothing."""
 import html
 import re
-from html.parser import HTMLParser
 
-
-class InputValues(HTMLParser):
-    """name -> value of every input in a fragment."""
-
-    def __init__(self):
-        super().__init__()
-        self.values = {}
-
-    def handle_starttag(self, tag, attrs):
-        attrs = dict(attrs)
-        if tag == "input" and "name" in attrs:
-            self.values[attrs["name"]] = attrs.get("value")
-
-
-def inputs(fragment: str) -> dict:
-    parser = InputValues()
-    parser.feed(fragment)
-    return parser.values
+from tests.support import input_values
 
 
 def figure(page: str, element_id: str) -> str:
@@ -39,7 +21,7 @@ def test_a_pasted_metar_fills_the_fields_and_density_altitude_appears(instructor
     # 17 °C, QNH 1018 hPa. The test site is at 500 ft.
     answer = paste(instructor_client, world, "METAR YUDO 221630Z 24008KT 9999 SCT010 17/16 Q1018")
     assert answer.status_code == 200
-    filled = inputs(answer.text)
+    filled = input_values(answer.text)
     assert [filled[name] for name in ("wind_dir_deg", "wind_kt", "oat_c", "altimeter")] == ["240", "8", "17", "1018"]
     assert 'hx-swap-oob="true"' in answer.text
     # About 27 ft per hPa near sea level (common practice): 1018 hPa puts a 500 ft site about 130 ft lower.
@@ -54,5 +36,5 @@ def test_an_unreadable_metar_says_so_and_fills_nothing(instructor_client, world)
     text = html.unescape(answer.text)
     assert "This METAR could not be read" in text
     assert "Filled from the METAR" not in text
-    assert 'hx-swap-oob' not in answer.text and "wind_kt" not in inputs(answer.text)
+    assert 'hx-swap-oob' not in answer.text and "wind_kt" not in input_values(answer.text)
     assert figure(answer.text, "density-altitude") == "—"

@@ -1,11 +1,11 @@
 """The chief pilot's standards pages: the list with the built-in defaults, a new standard, an edit
 that saves a new version, and errors in words."""
 import html
-from html.parser import HTMLParser
 
 from sqlalchemy import func, select
 
 from server.training.models import Standard
+from tests.support import input_values
 
 FORM = {
     "name": "Private straight-in", "level": "private", "maneuver": "straight_in", "airspeed_tol_kt": "5",
@@ -23,25 +23,6 @@ def test_the_list_shows_the_built_in_defaults_when_no_standard_is_set(chief_clie
     assert "every attempt is scored with the built-in defaults" in text
     assert "airspeed ±5 kt" in text and "touchdown point within 200 ft" in text and "heading ±10 °" in text
     assert "Caution." in text
-
-
-class InputValues(HTMLParser):
-    """name -> value of every input on a page."""
-
-    def __init__(self):
-        super().__init__()
-        self.values = {}
-
-    def handle_starttag(self, tag, attrs):
-        attrs = dict(attrs)
-        if tag == "input" and "name" in attrs:
-            self.values[attrs["name"]] = attrs.get("value")
-
-
-def input_values(page: str) -> dict:
-    parser = InputValues()
-    parser.feed(page)
-    return parser.values
 
 
 def test_the_new_standard_form_starts_from_the_defaults(chief_client):
