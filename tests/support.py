@@ -75,6 +75,20 @@ def make_sortie(session: Session, world: World, *, instructor: Person | None = N
     return sortie
 
 
+def add_second_type(session: Session) -> Aircraft:
+    """A second invented helicopter type with one aircraft, for checks that tell types apart."""
+    other_type = HelicopterType(designation="Finch F-3 (test)", rotor_radius_ft=13, blade_count=3,
+                                normal_rotor_rpm=500, nr_power_off_min_pct=90, nr_power_off_max_pct=108,
+                                autorotation_kias=60, reference_weight_lb=1600, flare_band_low_ft=70,
+                                flare_band_high_ft=110, touchdown_speed_max_kt=8, hv_avoid=[])
+    session.add(other_type)
+    session.flush()
+    aircraft = Aircraft(registration="TS-FIN", type_id=other_type.id)
+    session.add(aircraft)
+    session.commit()
+    return aircraft
+
+
 class _InputValues(HTMLParser):
     def __init__(self):
         super().__init__()

@@ -8,11 +8,10 @@ from sqlalchemy import insert
 from server.compute.currency import evaluate_currency
 from server.currency import board
 from server.currency.models import CurrencyRule
-from server.fleet.models import Aircraft, HelicopterType
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
 from server.people.models import Person
-from tests.support import make_sortie
+from tests.support import add_second_type, make_sortie
 
 
 def _rule(db, **fields) -> CurrencyRule:
@@ -57,15 +56,7 @@ def test_takeover_never_qualifies(db, world):
 
 
 def test_rule_for_one_type_ignores_the_other(db, world):
-    other_type = HelicopterType(designation="Finch F-3 (test)", rotor_radius_ft=13, blade_count=3,
-                                normal_rotor_rpm=500, nr_power_off_min_pct=90, nr_power_off_max_pct=108,
-                                autorotation_kias=60, reference_weight_lb=1600, flare_band_low_ft=70,
-                                flare_band_high_ft=110, touchdown_speed_max_kt=8, hv_avoid=[])
-    db.add(other_type)
-    db.flush()
-    other_aircraft = Aircraft(registration="TS-FIN", type_id=other_type.id)
-    db.add(other_aircraft)
-    db.commit()
+    other_aircraft = add_second_type(db)
     rule = _rule(db, applies_to_people=[world.student.id], applies_to_roles=["chief_pilot"],
                  type_ids=[world.helicopter.id])
     sortie = make_sortie(db, world, attempts=2, sign=False, flown_at=_at(date(2026, 11, 20)))
@@ -148,18 +139,10 @@ def test_calendar_month_windows_through_the_api(db, world, chief_client, flown, 
 def test_sql_path_agrees_with_evaluate_currency_on_random_data(app, db, world):
     """The key check: on seeded random records the SQL summaries give what the pure evaluation gives."""
     rng = random.Random(20261201)
-    other_type = HelicopterType(designation="Finch F-3 (test)", rotor_radius_ft=13, blade_count=3,
-                                normal_rotor_rpm=500, nr_power_off_min_pct=90, nr_power_off_max_pct=108,
-                                autorotation_kias=60, reference_weight_lb=1600, flare_band_low_ft=70,
-                                flare_band_high_ft=110, touchdown_speed_max_kt=8, hv_avoid=[])
-    db.add(other_type)
-    db.flush()
-    other_aircraft = Aircraft(registration="TS-FIN", type_id=other_type.id)
-    db.add(other_aircraft)
-    db.commit()
+    other_aircraft = add_second_type(db)
     pilots = [world.student, world.other_student, world.instructor, world.other_instructor]
     instructors = [world.instructor.id, world.other_instructor.id, world.chief.id, None]
-    aircraft = {world.aircraft.id: world.helicopter.id, other_aircraft.id: other_type.id}
+    aircraft = {world.aircraft.id: world.helicopter.id, other_aircraft.id: other_aircraft.type_id}
     start = date(2025, 1, 1)
     sorties, attempts, truth = [], [], []
     sortie_id = attempt_id = 10_000
@@ -206,7 +189,7 @@ def test_sql_path_agrees_with_evaluate_currency_on_random_data(app, db, world):
         _rule(db, name="Any, 90 days, 3", window_days=90, min_count=3, warn_days=14),
         _rule(db, name="Touchdowns with instructor", terminations=["touchdown"], with_instructor=True,
               window_days=45, min_count=2, require_satisfactory=True),
-        _rule(db, name="Finch, 6 months", type_ids=[other_type.id], window_days=None, window_months=6, min_count=2),
+        _rule(db, name="Finch, 6 months", type_ids=[other_aircraft.type_id], window_days=None, window_months=6, min_count=2),
         _rule(db, name="Turns scoring 60, solo", maneuvers=["turn_180", "turn_360"], min_score=60,
               with_instructor=False, window_days=None, window_months=3, min_count=1, warn_days=20),
     ]

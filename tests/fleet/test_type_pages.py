@@ -9,11 +9,11 @@ import pytest
 from sqlalchemy import func, select
 
 from server.compute.hv import point_in_polygon
-from server.fleet.models import Aircraft, HelicopterType
+from server.fleet.models import HelicopterType
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
 from server.people.models import Person
-from tests.support import make_sortie
+from tests.support import add_second_type, make_sortie
 
 SVG = "{http://www.w3.org/2000/svg}"
 TYPE_FORM = {
@@ -145,15 +145,7 @@ def test_the_chart_plots_a_chosen_sorties_entries_inside_and_outside(chief_clien
 
 def test_the_sortie_choice_offers_only_this_types_sorties(chief_client, world, db):
     mine = make_sortie(db, world)
-    other_type = HelicopterType(designation="Finch F-1 (test)", rotor_radius_ft=11, blade_count=2,
-                                normal_rotor_rpm=550, nr_power_off_min_pct=90, nr_power_off_max_pct=110,
-                                autorotation_kias=55, reference_weight_lb=1200, flare_band_low_ft=50,
-                                flare_band_high_ft=90, touchdown_speed_max_kt=5, hv_avoid=[])
-    db.add(other_type)
-    db.flush()
-    other_aircraft = Aircraft(registration="TS-FNA", type_id=other_type.id)
-    db.add(other_aircraft)
-    db.commit()
+    other_aircraft = add_second_type(db)
     theirs = make_sortie(db, world)
     theirs.aircraft_id = other_aircraft.id  # flown in the other type
     db.commit()
