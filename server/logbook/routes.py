@@ -9,7 +9,7 @@ from fastapi.responses import FileResponse, HTMLResponse, RedirectResponse
 from server.compute import plausibility
 from server.config import PROJECT_ROOT
 from server.deps import DbSession, PageUser, require_role
-from server.errors import Invalid
+from server.errors import Forbidden, Invalid
 from server.fleet import service as fleet
 from server.fleet.models import Aircraft, Site
 from server.forms import blank_to_none, plain, validate
@@ -363,6 +363,8 @@ async def sortie_sign(sortie_id: int, request: Request, db: DbSession, person: P
 def sortie_details_form(sortie_id: int, request: Request, db: DbSession, person: PageUser):
     """The draft's own fields, to correct them in place."""
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    if not logbook.may_edit(db, actor=person, sortie=sortie):
+        raise Forbidden("Only a draft's instructor or a chief pilot can correct it; a signed sortie is amended instead.")
     local = sortie.flown_at.astimezone(_timezone(db)).strftime("%Y-%m-%dT%H:%M")
     values = {name: plain(getattr(sortie, name)) for name in
               ("pilot_id", "aircraft_id", "site_id", "oat_c", "wind_dir_deg", "wind_kt", "gust_kt",

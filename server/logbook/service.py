@@ -103,6 +103,12 @@ def local_date(session: Session, moment: datetime):
 
 # ---- writing a draft -----------------------------------------------------------------------
 
+def may_edit(session: Session, *, actor: Person, sortie: Sortie) -> bool:
+    """A draft, the latest version, and the actor its instructor or a chief pilot."""
+    return (sortie.state == "draft" and superseded_by(session, sortie) is None
+            and (sortie.instructor_id == actor.id or actor.has_role("chief_pilot")))
+
+
 def _require_draft(sortie: Sortie) -> None:
     if sortie.state != "draft":
         raise Conflict("This sortie is signed and cannot be changed. Make an amendment with a reason instead.")
@@ -184,9 +190,8 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
         sortie.flown_at = data.flown_at
     if "pilot_id" in fields_set and data.pilot_id is not None and data.pilot_id != sortie.pilot_id:
         pilot = session.get(Person, data.pilot_id)
-        if pilot is None or not pilot.active or not people.can_view_pilot(session, viewer=actor,
-                                                                            pilot_id=pilot.id):
-            raise Invalid("pilot_id does not name an active person you fly with.")
+        if pilot is None or not pilot.active:  # the same rule as starting a sortie
+            raise Invalid("pilot_id does not name an active person.")
         sortie.pilot_id = pilot.id
         for attempt in sortie.attempts:
             attempt.pilot_id = pilot.id
