@@ -205,3 +205,15 @@ def test_attempt_cards_say_why_and_name_the_crosswind_side(instructor_client, wo
     assert "Satisfactory : instructor's grade, though outside on flare height" in re.sub(r"\s+", " ", text)
     assert "Flare below the band" in text
     assert "METAR METAR" not in re.sub(r"\s+", " ", text)
+
+
+def test_the_api_corrects_a_draft_s_pilot_and_refuses_it_once_signed(instructor_client, world, db):
+    draft = make_sortie(db, world, attempts=1)
+    answer = instructor_client.api("PATCH", f"/api/v1/sorties/{draft.id}", json={"pilot_id": world.other_student.id})
+    assert answer.status_code == 200, answer.text
+    assert answer.json()["pilot_id"] == world.other_student.id
+    db.expire_all()
+    assert {a.pilot_id for a in db.get(Sortie, draft.id).attempts} == {world.other_student.id}
+    signed = make_sortie(db, world, attempts=1, sign=True)
+    refused = instructor_client.api("PATCH", f"/api/v1/sorties/{signed.id}", json={"pilot_id": world.other_student.id})
+    assert refused.status_code == 409
