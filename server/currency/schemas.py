@@ -4,7 +4,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
-from server.logbook.schemas import Maneuver, Termination
+from server.vocabulary import Maneuver, Termination
 from server.people.schemas import Role
 
 Status = Literal["current", "due_soon", "lapsed", "never"]

@@ -4,8 +4,9 @@ from datetime import date
 
 from fastapi import APIRouter
 
-from server.deps import ApiUser, DbSession
-from server.logbook.schemas import Maneuver, Termination
+from server.deps import DbSession
+from server.people.deps import ApiUser
+from server.vocabulary import Maneuver, Termination
 from server.progress import service as progress
 from server.progress.schemas import StandardRead, TrendsRead
 

@@ -2,7 +2,8 @@
 from sqlalchemy import func, select
 
 from server.logbook.models import Attempt, Sortie
-from server.records.models import AuditEvent, Signature
+from server.records.models import AuditEvent
+from server.logbook.models import Signature
 from tests.support import PASSWORD, make_sortie
 
 GOOD_ATTEMPT = {

@@ -8,7 +8,8 @@ from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
 from server.people.models import Person
 from server.records import audit
-from server.records.models import AuditEvent, Signature
+from server.records.models import AuditEvent
+from server.logbook.models import Signature
 
 
 @dataclass
