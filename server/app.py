@@ -10,7 +10,6 @@ from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
-from server.people.deps import SignInRequired
 from server.errors import FlarebookError
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
@@ -20,17 +19,18 @@ from server.logbook import routes as logbook_routes
 from server.openapi_errors import describe_errors
 from server.people import api as people_api
 from server.people import routes as people_routes
+from server.people.deps import SignInRequired
 from server.progress import api as progress_api
 from server.progress import program_api, program_routes
 from server.progress import routes as progress_routes
+from server.records.refusals import record_refusal
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
-from server.training import api as training_api
-from server.records.refusals import record_refusal
-from server.write_queue import WriterQueue
 from server.security import SecurityHeaders
+from server.training import api as training_api
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
+from server.write_queue import WriterQueue
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:

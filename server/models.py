@@ -2,11 +2,10 @@
 from server.currency.models import CalendarFeed, CurrencyRule
 from server.db import Base
 from server.fleet.models import Aircraft, HelicopterType, Site
-from server.logbook.models import Attempt, Sortie
+from server.idempotency import IdempotencyKey
+from server.logbook.models import Attempt, Signature, Sortie
 from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
 from server.records.models import AuditEvent
-from server.idempotency import IdempotencyKey
-from server.logbook.models import Signature
 from server.training.models import (
     Enrolment,
     Lesson,

@@ -20,12 +20,12 @@ from server.currency.schemas import (
     Status,
 )
 from server.deps import DbSession
-from server.people.deps import ApiUser, SetupApiUser
 from server.errors import Invalid, NotFound
+from server.logbook import access
 from server.people import service as people
+from server.people.deps import ApiUser, SetupApiUser
 from server.people.models import Person
 from server.people.schemas import Role
-from server.logbook import access
 
 router = APIRouter(tags=["currency"])
 feed_router = APIRouter(include_in_schema=False)

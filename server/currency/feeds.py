@@ -8,11 +8,11 @@ from sqlalchemy.orm import Session
 from server.currency import board
 from server.currency.models import CalendarFeed
 from server.errors import Forbidden, NotFound
+from server.logbook import access
 from server.people.models import Person
 from server.people.security import new_secret, sha256_hex
 from server.records import audit
 from server.types import utcnow
-from server.logbook import access
 
 PRODID = "-//Flarebook//Currency due dates//EN"
 

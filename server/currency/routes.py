@@ -11,16 +11,15 @@ from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
 from server.currency.schemas import RuleCreate
 from server.deps import DbSession
-from server.people.deps import PageUser, SetupUser
 from server.errors import Invalid, NotFound
 from server.fleet.models import HelicopterType
 from server.forms import validate
-from server.people import service as people
-from server.people.models import Person
-from server.vocabulary import ROLE_LABELS, ROLES
-from server.vocabulary import MANEUVER_LABELS, TERMINATION_LABELS
-from server.web import render
 from server.logbook import access
+from server.people import service as people
+from server.people.deps import PageUser, SetupUser
+from server.people.models import Person
+from server.vocabulary import MANEUVER_LABELS, ROLES, ROLE_LABELS, TERMINATION_LABELS
+from server.web import render
 
 router = APIRouter(include_in_schema=False)
 

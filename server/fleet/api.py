@@ -2,9 +2,7 @@
 from fastapi import APIRouter
 
 from server.deps import DbSession
-from server.people.deps import ApiUser, SetupApiUser
 from server.fleet import service as fleet
-from server.people.deps import IdempotentCreate
 from server.fleet.schemas import (
     AircraftCreate,
     AircraftRead,
@@ -14,6 +12,7 @@ from server.fleet.schemas import (
     TypeRead,
     TypeUpdate,
 )
+from server.people.deps import ApiUser, IdempotentCreate, SetupApiUser
 
 router = APIRouter(tags=["fleet"])
 

@@ -3,13 +3,13 @@ from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
 from server.deps import DbSession
-from server.people.deps import SetupUser
 from server.errors import FlarebookError
 from server.fleet import service as fleet
 from server.fleet.hv_text import RegionTextError, format_regions, parse_regions
 from server.fleet.models import HelicopterType
 from server.fleet.schemas import TypeCreate
 from server.forms import blank_to_none, plain, validate
+from server.people.deps import SetupUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

@@ -5,12 +5,10 @@ from pydantic import ValidationError
 
 from server.compute.atmosphere import hpa_to_inhg
 from server.deps import DbSession
-from server.people.deps import ApiUser
 from server.errors import Invalid
 from server.logbook import derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
-from server.people.deps import IdempotentCreate
 from server.logbook.schemas import (
     KG_PER_LB,
     AmendRequest,
@@ -25,6 +23,7 @@ from server.logbook.schemas import (
     SortieRead,
     SortieUpdate,
 )
+from server.people.deps import ApiUser, IdempotentCreate
 
 router = APIRouter(tags=["logbook"])
 

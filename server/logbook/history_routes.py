@@ -2,9 +2,9 @@
 from fastapi import APIRouter, Request
 
 from server.deps import DbSession
-from server.people.deps import PageUser
 from server.logbook import service as logbook
 from server.logbook.history import record_history
+from server.people.deps import PageUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

@@ -6,20 +6,18 @@ from fastapi import APIRouter, Query, Request
 from fastapi.responses import HTMLResponse, RedirectResponse
 
 from server.deps import DbSession
-from server.people.deps import PageUser, require_role
 from server.errors import Invalid
 from server.fleet import service as fleet
 from server.fleet.models import Site
 from server.forms import blank_to_none, plain, validate
-from server.logbook import derive
+from server.logbook import access, derive
 from server.logbook import service as logbook
-from server.logbook.models import Attempt, Sortie
+from server.logbook.models import Attempt, MEANINGS, Sortie
 from server.logbook.schemas import AttemptFields, ConditionsRequest, SortieCreate
 from server.people import service as people
+from server.people.deps import PageUser, require_role
 from server.people.models import Person
-from server.logbook.models import MEANINGS
 from server.web import render
-from server.logbook import access
 
 router = APIRouter(include_in_schema=False)
 

@@ -7,16 +7,14 @@ from sqlalchemy.orm import Session
 from server.compute.atmosphere import inhg_to_hpa
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.fleet.models import Aircraft, Site
-from server.logbook import derive
-from server.logbook.models import Attempt, Sortie
+from server.logbook import access, derive
+from server.logbook.models import Attempt, MEANINGS, Signature, Sortie
 from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
 from server.people import service as people
 from server.people.models import Person
 from server.people.security import verify_password
 from server.records import audit
-from server.logbook.models import MEANINGS, Signature
 from server.training.service import standard_for
-from server.logbook import access
 
 ATTEMPT_FIELDS = tuple(AttemptFields.model_fields)
 SORTIE_RECORD_FIELDS = (

@@ -2,8 +2,8 @@
 from fastapi import APIRouter
 
 from server.deps import DbSession
-from server.people.deps import ApiUser, SetupApiUser
 from server.people import service as people
+from server.people.deps import ApiUser, SetupApiUser
 from server.people.models import Person
 from server.people.schemas import MeRead, PersonCreate, PersonRead, PersonUpdate
 

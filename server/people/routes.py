@@ -5,9 +5,9 @@ from fastapi import APIRouter, Form, Request
 from fastapi.responses import RedirectResponse
 
 from server.deps import DbSession, check_csrf, cookie_name, secure_cookies
-from server.people.deps import BrowserSession, PageUser
 from server.errors import Unauthorized
 from server.people import service as people
+from server.people.deps import BrowserSession, PageUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

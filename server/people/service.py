@@ -8,10 +8,10 @@ from sqlalchemy.orm import Session
 from server.config import Settings
 from server.errors import Conflict, Invalid, NotFound, Unauthorized
 from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
-from server.vocabulary import ROLES
 from server.people.security import hash_password, new_secret, sha256_hex, verify_password
 from server.records import audit
 from server.types import utcnow
+from server.vocabulary import ROLES
 
 # Sign-in throttling: after this many refusals for one email in the window, refuse without checking.
 THROTTLE_LIMIT = 10

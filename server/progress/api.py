@@ -6,9 +6,9 @@ from fastapi import APIRouter
 
 from server.deps import DbSession
 from server.people.deps import ApiUser
-from server.vocabulary import Maneuver, Termination
 from server.progress import service as progress
 from server.progress.schemas import StandardRead, TrendsRead
+from server.vocabulary import Maneuver, Termination
 
 router = APIRouter(tags=["progress"])
 

@@ -4,13 +4,12 @@ from datetime import date
 
 from sqlalchemy.orm import Session
 
+from server.compute.proficiency import AttemptPoint, KindTrend, MetricTrend
 from server.compute.trends import ewma_chart
 from server.people import service as people
 from server.people.models import Person
-from server.progress import service
+from server.progress import programs, service
 from server.progress.charts import ChartData, describe, trend_chart_svg
-from server.compute.proficiency import AttemptPoint, KindTrend, MetricTrend
-from server.progress import programs
 from server.training import programs as syllabi
 from server.vocabulary import MANEUVER_LABELS, TERMINATION_LABELS
 

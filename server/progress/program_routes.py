@@ -8,17 +8,17 @@ from pydantic import ValidationError
 from sqlalchemy import select
 
 from server.deps import DbSession
-from server.people.deps import PageUser
 from server.errors import FlarebookError, Invalid
 from server.logbook import access
-from server.people.models import Person
-from server.progress.routes import file_context
 from server.people import service as people
+from server.people.deps import PageUser
+from server.people.models import Person
 from server.progress import programs as progress
+from server.progress.routes import file_context
 from server.training import programs
 from server.training.models import Enrolment, Program, Standard
-from server.vocabulary import MANEUVERS, TERMINATIONS
 from server.training.program_schemas import EnrolmentCreate, ProgramWrite
+from server.vocabulary import MANEUVERS, TERMINATIONS
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

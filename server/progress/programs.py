@@ -7,11 +7,11 @@ from datetime import date
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
+from server.compute.proficiency import AttemptPoint
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.logbook import access
 from server.people.models import Person
 from server.people.security import verify_password
-from server.compute.proficiency import AttemptPoint
 from server.progress.service import read_points
 from server.records import audit
 from server.training.models import (

@@ -3,12 +3,12 @@ from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
 from server.deps import DbSession
+from server.logbook import access
 from server.people.deps import PageUser
 from server.people.models import Person
 from server.progress import file as progress_file
 from server.progress import programs
 from server.web import render
-from server.logbook import access
 
 router = APIRouter(include_in_schema=False)
 

@@ -19,14 +19,14 @@ from server.compute.proficiency import (
     nr_deviation_pct,
 )
 from server.errors import NotFound
+from server.logbook import access
 from server.logbook.counted import counted_sorties_clause
 from server.logbook.models import Attempt, Sortie
 from server.people import service as people
 from server.people.models import Person
 from server.training.models import Standard
-from server.vocabulary import MANEUVERS, TERMINATIONS
 from server.training.service import standard_for
-from server.logbook import access
+from server.vocabulary import MANEUVERS, TERMINATIONS
 
 def _column_default(column) -> object:
     return column.default.arg

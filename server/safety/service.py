@@ -16,8 +16,8 @@ from server.errors import Invalid
 from server.fleet.models import Aircraft, Site
 from server.logbook.counted import counted_sorties_clause
 from server.logbook.models import Attempt, Sortie
-from server.people.models import Person
 from server.people import service as people
+from server.people.models import Person
 
 FLAG_LABELS = {
     "nr_limits": "Rotor RPM outside limits",

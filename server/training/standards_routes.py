@@ -4,9 +4,9 @@ from fastapi.responses import RedirectResponse
 
 from server.compute.scoring import METRICS
 from server.deps import DbSession
-from server.people.deps import SetupUser
 from server.errors import FlarebookError
 from server.forms import blank_to_none, plain, validate
+from server.people.deps import SetupUser
 from server.training import standards
 from server.training.models import Standard
 from server.training.standards_schemas import StandardCreate

@@ -4,8 +4,8 @@ from playwright.sync_api import expect
 
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
-from server.people.models import Person
 from server.people import service as people
+from server.people.models import Person
 from tests.browser.conftest import axe_violations, sign_in
 from tests.support import make_sortie
 
