@@ -11,8 +11,8 @@ import json
 from fastapi import Request, Response
 from sqlalchemy.orm import Session
 
+from server.idempotency import HEADER, Once, parse_key
 from server.people.models import Person
-from server.records.idempotency import HEADER, Once, parse_key
 
 FIELD = "idempotency_key"
 # The CSRF token changes when the instructor signs in again; a replay after that is the same request.
@@ -31,7 +31,7 @@ class PageOnce:
     def __init__(self, db: Session, person: Person, request: Request, form):
         raw = request.headers.get(HEADER) or form.get(FIELD)
         key = parse_key(str(raw)) if raw else None
-        self._once = Once(db, person, key, form_fingerprint(request.method, request.url.path, form))
+        self._once = Once(db, person.id, key, form_fingerprint(request.method, request.url.path, form))
         self._claim = None
 
     def claim(self) -> dict | None:
