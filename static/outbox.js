@@ -153,6 +153,11 @@
           var actions = document.createElement("span");
           actions.className = "line-actions";
           actions.appendChild(button(entry.warnings ? "Send as entered" : "Send again", entry.warnings ? "confirm" : "retry", entry.key));
+          if (entry.status === 401 || entry.status === 403) {
+            var signin = document.createElement("a");
+            signin.className = "button quiet small"; signin.href = "/signin"; signin.textContent = "Sign in again";
+            actions.appendChild(signin);
+          }
           actions.appendChild(button("Remove from this tablet", "remove", entry.key));
           item.appendChild(actions);
         }
@@ -192,7 +197,11 @@
     if (!navigator.onLine && !(options && options.force)) return render();
     return outbox.replayAll(csrfToken(), options).then(function (sent) {
       sent.forEach(function (s) { placeCard(s.html); });
-      if (sent.length) cachePage();
+      if (sent.length) {
+        cachePage();
+        var state = sheetForm() && sheetForm().querySelector(".save-state");
+        if (state) { state.textContent = "Sent: " + sent.length + (sent.length === 1 ? " entry that was" : " entries that were") + " waiting."; state.dataset.kind = "saved"; }
+      }
       return render();
     });
   }
