@@ -119,8 +119,18 @@
       if (form.dataset.sent) { event.preventDefault(); return; }  // a second tap: the first is on its way
       form.dataset.sent = "1";
       var button = form.querySelector("button[type=submit]");
-      if (button) { button.setAttribute("aria-disabled", "true"); button.textContent = "Starting…"; }
+      if (button) { button.dataset.label = button.textContent; button.setAttribute("aria-disabled", "true"); button.textContent = "Sending…"; }
     }
+  });
+
+  // Back to a page kept in the browser's memory: its forms may be sent again (a new key is drawn on reload).
+  window.addEventListener("pageshow", function (event) {
+    if (!event.persisted) return;
+    document.querySelectorAll("form[data-once]").forEach(function (form) {
+      delete form.dataset.sent;
+      var button = form.querySelector("button[type=submit]");
+      if (button && button.dataset.label) { button.removeAttribute("aria-disabled"); button.textContent = button.dataset.label; }
+    });
   });
 
   // The attempt form drawn after an add: a tap on it within a second, before anything was typed, is

@@ -88,6 +88,7 @@ def test_entries_survive_an_expired_sign_in_and_are_sent_after_signing_in_again(
     expect(refused).to_have_count(3)
     expect(refused.first).to_contain_text("Your sign-in has ended. Sign in again")
     expect(refused.first.get_by_role("button", name="Remove from this tablet")).to_be_visible()
+    expect(refused.first.get_by_role("link", name="Sign in again")).to_have_attribute("href", "/signin")
     assert attempts_on_server(db, sortie.id) == 0
 
     sign_in(page, world.instructor.email)
