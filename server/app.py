@@ -29,6 +29,7 @@ from server.records import routes as records_routes
 from server.records.refusals import record_refusal
 from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
+from server.tracks import api as tracks_api
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
 
@@ -66,6 +67,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     for module in (fleet_routes, standards_routes):
         app.include_router(module.router)
     app.include_router(records_routes.router)
+    app.include_router(tracks_api.router, prefix="/api/v1")
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

@@ -5,6 +5,7 @@ from server.fleet.models import Aircraft, HelicopterType, School, Site
 from server.logbook.models import Attempt, Sortie
 from server.people.models import ApiToken, Person, PersonRole, SignInFailure, UserSession
 from server.records.models import AuditEvent, IdempotencyKey, Signature
+from server.tracks.models import Track
 from server.training.models import (
     Enrolment,
     Lesson,
@@ -20,5 +21,5 @@ __all__ = [
     "Aircraft", "ApiToken", "Attempt", "AuditEvent", "Base", "CalendarFeed", "CurrencyRule",
     "Enrolment", "HelicopterType", "IdempotencyKey", "Lesson", "LessonCompletion",
     "LessonRequirement", "Person", "PersonRole", "Program", "School", "SignInFailure", "Signature",
-    "Site", "Sortie", "Stage", "StageCheck", "Standard", "UserSession",
+    "Site", "Sortie", "Stage", "StageCheck", "Standard", "Track", "UserSession",
 ]

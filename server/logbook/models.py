@@ -1,7 +1,8 @@
 """Tables for sorties and attempts."""
+import math
 from datetime import date, datetime
 
-from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, String, Text
+from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, String, Text, text
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from server.db import Base
@@ -106,7 +107,27 @@ class Attempt(Base):
     flags: Mapped[list] = mapped_column(JSON, default=list)
     satisfactory: Mapped[bool] = mapped_column(Boolean, default=False)
     within_tolerances: Mapped[bool] = mapped_column(Boolean, default=False)
+    # Figures taken from a recorded track: {field: {value, uncertainty, track_id, track_sha256, detection}}.
+    # A figure counts as measured while the stored value is still the measured one; typing another wins.
+    measured: Mapped[dict] = mapped_column(JSON, default=dict, server_default=text("'{}'"))
 
     created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     sortie: Mapped[Sortie] = relationship(back_populates="attempts")
+
+    @property
+    def measured_fields(self) -> list[str]:
+        """Fields whose stored value is still the one measured from a track (a typed change wins)."""
+        return sorted(name for name, entry in (self.measured or {}).items()
+                      if getattr(self, name, None) is not None and entry.get("value") is not None
+                      and math.isclose(getattr(self, name), entry["value"], abs_tol=1e-9))
+
+    @property
+    def measured_uncertainty(self) -> dict[str, float]:
+        return {name: self.measured[name]["uncertainty"] for name in self.measured_fields
+                if self.measured[name].get("uncertainty") is not None}
+
+    @property
+    def track_sha256s(self) -> list[str]:
+        """The recorded tracks this attempt's measured figures come from."""
+        return sorted({self.measured[name]["track_sha256"] for name in self.measured_fields})

@@ -249,3 +249,12 @@ def training_sortie(seed_shift: int = 0) -> Flight:
     f.normal_approach(rate_fpm=700)
     f.circuit_to_autorotation(at_ft=750, end="touchdown", rate_fpm=1400, flare_ft=60, td_kt=9)
     return f
+
+
+def short_sortie() -> Flight:
+    """On the ground at the site, then one practice autorotation to a touchdown and one power recovery."""
+    f = Flight(heading_deg=270.0)
+    f.fly(40)
+    f.circuit_to_autorotation(at_ft=700, end="touchdown", rate_fpm=1600, flare_ft=75, td_kt=5)
+    f.circuit_to_autorotation(at_ft=700, end="recovery", rate_fpm=1700, flare_ft=110, recovery_bottom_ft=70)
+    return f
