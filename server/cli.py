@@ -11,6 +11,7 @@ from server.migrate import upgrade
 from server.people import service as people
 from server.people.models import ROLES, Person
 from server.records import commands as records_commands
+from server.tracks import commands as track_commands
 
 
 def _sessions():
@@ -83,6 +84,7 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("--label", default="command line")
     new.set_defaults(run=cmd_token_new)
     records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
+    track_commands.add_commands(sub)  # track import
     return parser
 
 
