@@ -30,6 +30,7 @@ from server.records.refusals import record_refusal
 from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
 from server.tracks import api as tracks_api
+from server.tracks import routes as tracks_routes
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
 
@@ -68,6 +69,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         app.include_router(module.router)
     app.include_router(records_routes.router)
     app.include_router(tracks_api.router, prefix="/api/v1")
+    app.include_router(tracks_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

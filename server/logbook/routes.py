@@ -17,6 +17,7 @@ from server.logbook.schemas import AttemptFields, ConditionsRequest, SortieCreat
 from server.people import service as people
 from server.people.models import Person
 from server.records.models import MEANINGS
+from server.tracks.views import sheet_tracks
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -156,6 +157,7 @@ def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
         "sign_statement": MEANINGS["instructor_certifies"],
         "can_amend": state in ("signed", "acknowledged") and is_editor,
         "can_acknowledge": state == "signed" and sortie.pilot_id == person.id,
+        "tracks": sheet_tracks(db, sortie=sortie),
         **_new_attempt_context(sortie, last),
     }
 

@@ -26,6 +26,7 @@ async def read_upload(request: Request, file: UploadFile) -> bytes:
     """The uploaded bytes, refusing a file over the track upload limit without reading all of it."""
     limit = request.app.state.settings.track_upload_max_bytes
     data = await file.read(limit + 1)
+    await file.close()
     if len(data) > limit:
         raise Invalid(f"The file is larger than {limit / 1e6:.0f} MB, the limit for a track; "
                       "export a shorter stretch or a lower sample rate.")
