@@ -31,6 +31,8 @@ class ChartData:
     ewma: Sequence[float]
     ucl: Sequence[float]
     lcl: Sequence[float]
+    # Beside each value: measured from a recorded track (drawn as a square) rather than observed.
+    measured: Sequence[bool] = ()
 
 
 def nice_ticks(low: float, high: float, count: int = 5) -> list[float]:
@@ -119,11 +121,19 @@ def trend_chart_svg(data: ChartData) -> str:
     ewma_points = [(x_at(i), y_at(v)) for i, v in enumerate(data.ewma)]
     parts.append(f'<polyline class="ewma" points="{_path(ewma_points)}" fill="none" stroke="{EWMA_COLOUR}" '
                  f'stroke-width="3"/>')
-    # Each attempt: a circle inside the band, a hollow diamond outside it.
+    # Each attempt: a circle inside the band, a hollow diamond outside it; a figure measured from a
+    # recorded track is a square (filled inside, hollow outside).
     for i, value in enumerate(data.values):
         x, y = x_at(i), y_at(value)
         label = f"{data.dates[i].isoformat()}: {_fmt(value)} {data.unit}"
-        if _inside(value, data.band_low[i], data.band_high[i]):
+        inside = _inside(value, data.band_low[i], data.band_high[i])
+        if i < len(data.measured) and data.measured[i]:
+            where = "inside" if inside else "outside"
+            fill, stroke = (INK, INK) if inside else ("#ffffff", OUTSIDE_COLOUR)
+            parts.append(f'<rect class="attempt measured {where}" x="{x - 5:.1f}" y="{y - 5:.1f}" width="10" '
+                         f'height="10" fill="{fill}" stroke="{stroke}" stroke-width="2"><title>{escape(label)}, '
+                         f'measured from a recorded track, {where} the band</title></rect>')
+        elif inside:
             parts.append(f'<circle class="attempt inside" cx="{x:.1f}" cy="{y:.1f}" r="4" fill="{INK}">'
                          f'<title>{escape(label)}, inside the band</title></circle>')
         else:

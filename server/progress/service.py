@@ -34,6 +34,10 @@ METRICS = ("touchdown_speed_kt", "flare_height_dev_ft", "point_error_ft", "nr_de
 # Signed metrics have their target at 0: the size of the value is what improves or degrades.
 SIGNED_METRICS = frozenset({"flare_height_dev_ft", "point_error_ft", "nr_dev_pct"})
 HIGHER_IS_BETTER = frozenset({"score"})
+# The attempt field behind each metric that a recorded track can measure (rotor RPM and the score cannot be).
+MEASURED_FIELD = {"touchdown_speed_kt": "touchdown_speed_kt", "flare_height_dev_ft": "flare_height_ft",
+                  "point_error_ft": "point_error_ft"}
+SOURCES = ("all", "measured")
 # The part of the stored score whose tolerance scales each metric's "steady" band.
 TOLERANCE_PART = {
     "touchdown_speed_kt": "touchdown_speed",
@@ -77,6 +81,8 @@ class AttemptPoint:
     satisfactory: bool
     within_tolerances: bool
     standard_id: int | None
+    # Attempt fields whose value was measured from a recorded track (not typed from memory).
+    measured: frozenset[str] = frozenset()
 
 
 @dataclass(frozen=True)
@@ -94,6 +100,8 @@ class MetricTrend:
     slope_per_attempt: float | None
     direction: str
     tolerance: float | None
+    # Beside each value: was it measured from a recorded track?
+    measured: list[bool] = field(default_factory=list)
 
 
 @dataclass(frozen=True)
@@ -147,7 +155,7 @@ def read_points(session: Session, *, pilot_id: int, maneuver: str | None = None,
             Attempt.id, Attempt.sortie_id, Attempt.flown_on, Attempt.maneuver, Attempt.termination,
             Attempt.touchdown_speed_kt, Attempt.flare_height_ft, Attempt.flare_band_low_ft,
             Attempt.flare_band_high_ft, Attempt.point_error_ft, Attempt.score, Attempt.satisfactory,
-            Attempt.within_tolerances, Attempt.standard_id,
+            Attempt.within_tolerances, Attempt.standard_id, Attempt.measured,
             _part("touchdown_speed", "subscore"), _part("flare_height", "subscore"),
             _part("rotor_rpm", "value"), _part("rotor_rpm", "deviation"),
             *(_part(part, "tolerance") for part in TOLERANCE_PART.values()),
@@ -165,7 +173,7 @@ def read_points(session: Session, *, pilot_id: int, maneuver: str | None = None,
 
 def _point(row) -> AttemptPoint:
     (attempt_id, sortie_id, flown_on, maneuver, termination, touchdown, flare, band_low, band_high, point,
-     score, satisfactory, within, standard_id, touchdown_sub, flare_sub, nr_value, nr_deviation,
+     score, satisfactory, within, standard_id, measured, touchdown_sub, flare_sub, nr_value, nr_deviation,
      *tolerances) = row
     band = (band_low, band_high) if band_low is not None and band_high is not None else None
     return AttemptPoint(
@@ -182,7 +190,20 @@ def _point(row) -> AttemptPoint:
         flare_height_ft=flare, flare_band_ft=band, touchdown_subscore=touchdown_sub,
         flare_subscore=flare_sub, satisfactory=bool(satisfactory), within_tolerances=bool(within),
         standard_id=standard_id,
+        measured=_still_measured(measured, {"touchdown_speed_kt": touchdown, "flare_height_ft": flare,
+                                            "point_error_ft": point}),
     )
+
+
+def _still_measured(measured: dict | None, current: dict[str, float | None]) -> frozenset[str]:
+    """Fields whose stored value is still the measured one (a typed change wins)."""
+    return frozenset(name for name, entry in (measured or {}).items()
+                     if current.get(name) is not None and entry.get("value") is not None
+                     and abs(current[name] - entry["value"]) <= 1e-9)
+
+
+def is_measured(name: str, point: AttemptPoint) -> bool:
+    return MEASURED_FIELD.get(name) in point.measured
 
 
 def flare_deviation_ft(flare_height_ft: float | None, band: tuple[float, float] | None) -> float | None:
@@ -208,9 +229,11 @@ def nr_deviation_pct(worst_reading_pct: float | None, deviation_pct: float | Non
 
 # ---- computing -------------------------------------------------------------------------------
 
-def metric_trend(name: str, points: list[AttemptPoint]) -> MetricTrend:
-    """EWMA chart (NIST 6.3.2.4), Theil-Sen slope and direction of one metric over the attempts."""
-    recorded = [(p, p.values[name]) for p in points if p.values[name] is not None]
+def metric_trend(name: str, points: list[AttemptPoint], source: str = "all") -> MetricTrend:
+    """EWMA chart (NIST 6.3.2.4), Theil-Sen slope and direction of one metric over the attempts; with
+    `source` "measured", over the values measured from recorded tracks only."""
+    recorded = [(p, p.values[name]) for p in points
+                if p.values[name] is not None and (source == "all" or is_measured(name, p))]
     values = [float(v) for _, v in recorded]
     tolerance = next((p.tolerances[name] for p, _ in reversed(recorded) if p.tolerances[name] is not None),
                      None)
@@ -227,7 +250,7 @@ def metric_trend(name: str, points: list[AttemptPoint]) -> MetricTrend:
         slope_per_attempt=slope,
         direction=direction(judged_slope, len(values), lower_is_better=name not in HIGHER_IS_BETTER,
                             steady_band=steady_band),
-        tolerance=tolerance,
+        tolerance=tolerance, measured=[is_measured(name, p) for p, _ in recorded],
     )
 
 
@@ -246,12 +269,12 @@ def standard_used(session: Session, *, pilot_id: int, maneuver: str, points: lis
 
 
 def kind_trend(*, maneuver: str, termination: str, points: list[AttemptPoint], standard: StandardUsed,
-               as_of: date, metrics: tuple[str, ...] = METRICS) -> KindTrend:
+               as_of: date, metrics: tuple[str, ...] = METRICS, source: str = "all") -> KindTrend:
     """Trends, trend score, state and forecast of one kind from its attempts in flight order."""
     flown = [p for p in points if p.flown_on <= as_of]
     result = KindTrend(maneuver=maneuver, termination=termination, as_of=as_of, standard=standard,
                        attempts=len(flown), points=flown)
-    result.metrics = {name: metric_trend(name, flown) for name in metrics}
+    result.metrics = {name: metric_trend(name, flown, source) for name in metrics}
     if not flown:
         return result
     summaries = [
@@ -313,16 +336,18 @@ def viewable_pilot(session: Session, *, viewer: Person, pilot_id: int) -> Person
 
 
 def trends_for(session: Session, *, pilot_id: int, maneuver: str, termination: str,
-               as_of: date | None = None) -> KindTrend:
+               as_of: date | None = None, source: str = "all") -> KindTrend:
     """The trends of one maneuver and termination for a pilot."""
     as_of = as_of or local_today(session)
     points = read_points(session, pilot_id=pilot_id, maneuver=maneuver, termination=termination)
     standard = standard_used(session, pilot_id=pilot_id, maneuver=maneuver, points=points)
-    return kind_trend(maneuver=maneuver, termination=termination, points=points, standard=standard, as_of=as_of)
+    return kind_trend(maneuver=maneuver, termination=termination, points=points, standard=standard, as_of=as_of,
+                      source=source)
 
 
 def all_trends(session: Session, *, pilot_id: int, as_of: date | None = None,
-               points: list[AttemptPoint] | None = None, metrics: tuple[str, ...] = METRICS) -> list[KindTrend]:
+               points: list[AttemptPoint] | None = None, metrics: tuple[str, ...] = METRICS,
+               source: str = "all") -> list[KindTrend]:
     """Trends of every kind the pilot has flown, in one read of the records, in syllabus order."""
     as_of = as_of or local_today(session)
     if points is None:
@@ -333,7 +358,7 @@ def all_trends(session: Session, *, pilot_id: int, as_of: date | None = None,
     order = {kind: i for i, kind in enumerate((m, t) for m in MANEUVERS for t in TERMINATIONS)}
     return [
         kind_trend(maneuver=maneuver, termination=termination, points=by_kind[(maneuver, termination)],
-                   as_of=as_of, metrics=metrics,
+                   as_of=as_of, metrics=metrics, source=source,
                    standard=standard_used(session, pilot_id=pilot_id, maneuver=maneuver,
                                           points=by_kind[(maneuver, termination)]))
         for maneuver, termination in sorted(by_kind, key=lambda kind: order.get(kind, len(order)))
