@@ -10,7 +10,7 @@ from html import escape
 from server.progress.charts import nice_ticks
 
 WIDTH, HEIGHT = 640, 240
-LEFT, RIGHT, TOP, BOTTOM = 56, 56, 20, 44
+LEFT, RIGHT, TOP, BOTTOM = 56, 56, 30, 44
 INK, MUTED, GRID = "#15191d", "#4a535c", "#d9dee2"
 HEIGHT_COLOUR, SPEED_COLOUR, BAND_FILL, MARK_COLOUR = "#0a5f8a", "#7a4b00", "#d7ecdc", "#a3231b"
 
@@ -33,7 +33,8 @@ def profile_svg(*, chart_id: str, profile: dict, flare_band_ft: tuple[float, flo
            f'Arial, sans-serif" font-size="13">',
            f'<title id="{title_id}">{escape(title)}</title><desc id="{desc_id}">{escape(description)}</desc>']
     x0, x1 = t[0], t[-1] if t[-1] > t[0] else t[0] + 1
-    h_ticks = nice_ticks(min(0.0, min(heights)), max(heights + [flare_band_ft[1] if flare_band_ft else 0]), 5)
+    # Heights a few feet below the reference are receiver noise at the ground: the scale starts at 0.
+    h_ticks = nice_ticks(0.0, max(heights + [flare_band_ft[1] if flare_band_ft else 0]), 5)
     s_ticks = nice_ticks(0.0, max(max(speeds), 10.0), 5)
     plot_w, plot_h = WIDTH - LEFT - RIGHT, HEIGHT - TOP - BOTTOM
 
@@ -60,8 +61,8 @@ def profile_svg(*, chart_id: str, profile: dict, flare_band_ft: tuple[float, flo
         if x0 <= tick <= x1:
             out.append(f'<text x="{x(tick):.1f}" y="{HEIGHT - BOTTOM + 18}" text-anchor="middle" fill="{MUTED}">{_fmt(tick)}</text>')
     out.append(f'<text x="{LEFT + plot_w / 2}" y="{HEIGHT - 6}" text-anchor="middle" fill="{MUTED}">seconds from the entry</text>')
-    out.append(f'<text x="{LEFT - 44}" y="{TOP - 6}" fill="{HEIGHT_COLOUR}">ft AGL</text>')
-    out.append(f'<text x="{WIDTH - RIGHT + 4}" y="{TOP - 6}" fill="{SPEED_COLOUR}">kt</text>')
+    out.append(f'<text x="{LEFT - 44}" y="{TOP - 12}" fill="{HEIGHT_COLOUR}">ft AGL</text>')
+    out.append(f'<text x="{WIDTH - RIGHT + 4}" y="{TOP - 12}" fill="{SPEED_COLOUR}">kt</text>')
     for name, at in (("flare", profile.get("flare_t_s")), ("end", profile["end_t_s"])):
         if at is not None:
             out.append(f'<line x1="{x(at):.1f}" x2="{x(at):.1f}" y1="{TOP}" y2="{TOP + plot_h}" stroke="{MARK_COLOUR}" '
@@ -69,7 +70,7 @@ def profile_svg(*, chart_id: str, profile: dict, flare_band_ft: tuple[float, flo
             anchor = "end" if name == "flare" else "start"
             offset = -4 if name == "flare" else 4
             out.append(f'<text x="{x(at) + offset:.1f}" y="{TOP + 12}" text-anchor="{anchor}" fill="{MARK_COLOUR}">{name}</text>')
-    heights_path = " ".join(f"{x(a):.1f},{y_height(b):.1f}" for a, b in zip(t, heights))
+    heights_path = " ".join(f"{x(a):.1f},{y_height(max(b, 0.0)):.1f}" for a, b in zip(t, heights))
     speeds_path = " ".join(f"{x(a):.1f},{y_speed(b):.1f}" for a, b in zip(t, speeds))
     out.append(f'<polyline points="{heights_path}" fill="none" stroke="{HEIGHT_COLOUR}" stroke-width="2.5"/>')
     out.append(f'<polyline points="{speeds_path}" fill="none" stroke="{SPEED_COLOUR}" stroke-width="2" '
