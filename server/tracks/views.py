@@ -1,5 +1,4 @@
 """What the sortie sheet shows of a sortie's recorded tracks: summaries, figures and profile charts."""
-from markupsafe import Markup
 from sqlalchemy.orm import Session
 
 from server.compute.flare import expected_flare_band_ft
@@ -65,9 +64,10 @@ def sheet_tracks(session: Session, *, sortie: Sortie) -> list[dict]:
             detections.append({
                 "index": d["index"], "start_clock": d["start_at"][11:19], "ground": ground, "rows": rows,
                 "used_by": used.get(d["index"], []), "candidates": candidates,
-                "chart": Markup(profile_svg(
+                # Drawn from numbers, every text escaped (server/tracks/chart.py): the template marks it safe.
+                "chart": profile_svg(
                     chart_id=f"profile-{track.id}-{d['index']}", profile=d["profile"], flare_band_ft=band,
-                    title=f"Profile of autorotation {d['index']} found in the track")),
+                    title=f"Profile of autorotation {d['index']} found in the track"),
             })
         shown.append({"track": track, "ground_ref_words": GROUND_REF_WORDS[track.ground_ref],
                       "detections": detections})
