@@ -62,7 +62,10 @@ class DetectionSettings:
     # elevation and (with an aim point) this close to it.
     ground_min_s: float = 10.0
     ground_groundspeed_kt: float = 3.0
-    ground_match_ft: float = 150.0
+    ground_match_ft: float = 200.0
+    # Pressure altitudes on the standard setting (IGC) differ from the elevation by the day's pressure:
+    # about 30 ft per hPa (common practice), so up to about 1,500 ft in any weather.
+    ground_match_pressure_ft: float = 1500.0
     ground_radius_m: float = 1500.0
     # A reading on the ground this close in time shares most of the receiver's vertical error.
     ground_fresh_s: float = 600.0
@@ -222,7 +225,7 @@ class _Series:
         return started_at + timedelta(seconds=float(self.t[index]))
 
 
-def _ground_segments(series: _Series, site: SiteInfo, settings: DetectionSettings):
+def _ground_segments(series: _Series, site: SiteInfo, settings: DetectionSettings, match_ft: float):
     """(mid time s, median altitude m) of stationary stretches that look like the site's ground."""
     still = (series.gs < settings.ground_groundspeed_kt / KT_PER_MS) & (
         np.abs(series.vs) < settings.level_rate_fpm / FPM_PER_MS)
@@ -232,7 +235,7 @@ def _ground_segments(series: _Series, site: SiteInfo, settings: DetectionSetting
         if series.t[end - 1] - series.t[start] < settings.ground_min_s:
             continue
         level = float(np.median(series.alt[start:end]))
-        if abs(level - site_m) * FT_PER_M > settings.ground_match_ft:
+        if abs(level - site_m) * FT_PER_M > match_ft:
             continue
         if site.aim_lat_deg is not None:
             distance = math.hypot(float(np.median(series.x[start:end])), float(np.median(series.y[start:end])))
@@ -248,7 +251,8 @@ def analyse_track(track: Track, site: SiteInfo, *, settings: DetectionSettings =
     origin = ((site.aim_lat_deg, site.aim_lon_deg) if site.aim_lat_deg is not None and site.aim_lon_deg is not None
               else (float(track.lat_deg[0]), float(track.lon_deg[0])))
     series = _Series(track, settings, origin)
-    grounds = _ground_segments(series, site, settings)
+    match_ft = settings.ground_match_pressure_ft if track.altitude_datum == "pressure_1013" else settings.ground_match_ft
+    grounds = _ground_segments(series, site, settings, match_ft)
     notes = list(track.notes)
     ground_ref = "on_ground_readings" if grounds else "site_elevation"
     heights_reason = None

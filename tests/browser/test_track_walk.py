@@ -3,7 +3,7 @@ and accepts one autorotation into a new attempt, in a real browser under the str
 import pytest
 from playwright.sync_api import expect
 
-from tests.browser.conftest import sign_in
+from tests.browser.conftest import axe_violations, sign_in
 from tests.browser.test_sortie_sheet_walk import watch_errors
 from tests.support import make_sortie
 from tests.tracks.test_tracks_api import AIM, track_file
@@ -39,3 +39,21 @@ def test_instructor_imports_a_track_sees_the_profiles_and_accepts_one(page, worl
     page.screenshot(path=str(tmp_path / "track-accepted.png"))
     assert errors == []
     print("screenshots in", tmp_path)
+
+
+def test_the_track_section_has_no_accessibility_violations(new_context, world, db, axe_path, instructor_client):
+    """axe-core on the sheet with a track and an accepted detection (axe needs the CSP bypassed)."""
+    from tests.tracks.test_tracks_api import upload
+
+    world.site.aim_lat_deg, world.site.aim_lon_deg = AIM
+    db.add(world.site)
+    db.commit()
+    sortie = make_sortie(db, world)
+    track = upload(instructor_client, sortie.id).json()
+    instructor_client.api("POST", f"/api/v1/tracks/{track['id']}/detections/2/accept",
+                          json={"maneuver": "turn_180"})
+    page = new_context(bypass_csp=True).new_page()
+    sign_in(page, world.instructor.email)
+    page.goto(f"/sorties/{sortie.id}")
+    expect(page.locator("article.detection")).to_have_count(2)
+    assert axe_violations(page, axe_path) == []

@@ -170,3 +170,47 @@ def test_distance_along_the_landing_direction_agrees_with_geographiclib(landing_
     angle = math.radians(line["azi1"] - landing_dir)
     assert along == pytest.approx(line["s12"] * math.cos(angle) / FT, abs=0.1)
     assert across == pytest.approx(line["s12"] * math.sin(angle) / FT, abs=0.1)
+
+
+def igc_of(rows, *, pressure_offset_m: float) -> bytes:
+    """An IGC file by aerofiles' writer: pressure altitude only (GNSS altitude written as 0, as some loggers do)."""
+    import io
+
+    from aerofiles.igc import Writer
+
+    out = io.BytesIO()
+    writer = Writer(out)
+    writer.write_logger_id("XXX", "TST")
+    writer.write_date(rows[0][0].date())
+    for at, lat, lon, alt, _, _ in rows[::1]:
+        writer.write_fix(at.time(), latitude=lat, longitude=lon, valid=True,
+                         pressure_alt=int(round(alt + pressure_offset_m)), gps_alt=0)
+    return out.getvalue()
+
+
+def test_pressure_altitudes_are_referenced_to_the_receivers_own_readings_on_the_ground():
+    # A pressure altitude on 1013.25 hPa is off the elevation by about 30 ft per hPa (common practice):
+    # 150 m here, as on a day of about 995 hPa. Readings on the ground at the site cancel it.
+    flight = sortie()
+    rows = sample(flight, rate_hz=1, seed=11, doppler=False, elevation_m=ELEVATION_M, origin=AIM)
+    track = read_track(igc_of(rows, pressure_offset_m=150.0))
+    assert track.altitude_datum == "pressure_1013"
+    analysis = analyse_track(track, SITE)
+    assert analysis.ground_ref == "on_ground_readings"
+    pairs = matched(track, analysis, flight)
+    assert len(pairs) == 4
+    for detection, truth in pairs:
+        assert abs(detection.figures["entry_height_ft"] - truth.entry_height_ft) <= detection.uncertainty["entry_height_ft"]
+        assert detection.figures["touchdown_speed_kt"] is None  # IGC carries no Doppler speed
+
+
+def test_pressure_altitudes_without_readings_on_the_ground_leave_heights_unmeasured():
+    flight = Flight(heading_deg=270.0, height=[900 * FT], speed=[60 * 1852 / 3600])
+    flight.fly(30)
+    flight.autorotation(end="recovery", rate_fpm=1600, flare_ft=150, recovery_bottom_ft=100)
+    rows = sample(flight, rate_hz=1, seed=4, doppler=False, elevation_m=ELEVATION_M, origin=AIM)
+    analysis = analyse_track(read_track(igc_of(rows, pressure_offset_m=150.0)), SITE)
+    (detection,) = analysis.detections
+    assert detection.figures["entry_height_ft"] is None
+    assert "pressure altitudes" in detection.unmeasured["entry_height_ft"]
+    assert detection.figures["descent_rate_fpm"] is not None  # a rate needs no datum
