@@ -175,3 +175,17 @@ def test_sites_take_an_aim_point_both_or_neither(chief_client):
     half = chief_client.api("POST", "/api/v1/sites", json={"name": "Half Field", "elevation_ft": 300,
                                                           "aim_lat_deg": 50.6})
     assert half.status_code == 422 and "both" in half.text
+
+
+def test_the_export_carries_the_track_file_byte_for_byte(instructor_client, sortie, db):
+    import base64
+    import json
+
+    from server.records.export import export_json
+
+    upload(instructor_client, sortie.id)
+    db.expire_all()
+    exported = json.loads(export_json(db))
+    (row,) = exported["tables"]["tracks"]
+    assert base64.b64decode(row["raw"]) == track_file()  # RFC 4648 base64, decoded by the standard library
+    assert row["sha256"] == hashlib.sha256(track_file()).hexdigest()
