@@ -1,7 +1,7 @@
 """JSON API: import a recorded track for a sortie, read it, accept a detection into an attempt."""
 from typing import Annotated
 
-from fastapi import APIRouter, File, Form, Request, UploadFile
+from fastapi import APIRouter, File, Form, Request, Response, UploadFile
 
 from server.deps import ApiUser, DbSession
 from server.errors import Invalid
@@ -33,13 +33,17 @@ async def read_upload(request: Request, file: UploadFile) -> bytes:
     return data
 
 
-@router.post("/sorties/{sortie_id}/tracks", response_model=TrackRead, status_code=201)
-async def import_track(sortie_id: int, request: Request, db: DbSession, person: ApiUser,
+@router.post("/sorties/{sortie_id}/tracks", response_model=TrackRead, status_code=201,
+             responses={200: {"model": TrackRead, "description": "this file was imported for the sortie already"}})
+async def import_track(sortie_id: int, request: Request, response: Response, db: DbSession, person: ApiUser,
                        file: Annotated[UploadFile, File(description="GPX, NMEA 0183, IGC or CSV")],
                        format: Annotated[str | None, Form(description="gpx, nmea, igc or csv; detected if left out")] = None):
-    """Import a recorded track: every practice autorotation in it is found and measured."""
+    """Import a recorded track: every practice autorotation in it is found and measured. The same file sent
+    again gives the same track (200)."""
     data = await read_upload(request, file)
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    if tracks.already_imported(db, sortie=sortie, data=data) is not None:
+        response.status_code = 200
     track = tracks.import_track(db, actor=person, sortie=sortie, data=data, filename=file.filename or "",
                                 format=format, max_bytes=request.app.state.settings.track_upload_max_bytes)
     return track_read(track)

@@ -68,10 +68,19 @@ def detections_json(analysis: TrackAnalysis) -> list[dict]:
     ]
 
 
+def already_imported(session: Session, *, sortie: Sortie, data: bytes) -> Track | None:
+    """The same file sent again (a resend from the outbox, a second tap) is the same track."""
+    digest = hashlib.sha256(data).hexdigest()
+    return session.scalar(select(Track).where(Track.sortie_id == sortie.id, Track.sha256 == digest))
+
+
 def import_track(session: Session, *, actor: Person, sortie: Sortie, data: bytes, filename: str = "",
                  format: str | None = None, max_bytes: int) -> Track:
-    """Read, check and measure the file; keep it with the sortie. A bad file raises Invalid and stores nothing."""
+    """Read, check and measure the file; keep it with the sortie. A bad file raises Invalid and stores nothing;
+    a file already imported for this sortie gives its track back."""
     _require_editable(session, actor=actor, sortie=sortie)
+    if (existing := already_imported(session, sortie=sortie, data=data)) is not None:
+        return existing
     if len(data) > max_bytes:
         raise Invalid(f"The file is {len(data) / 1e6:.1f} MB; tracks up to {max_bytes / 1e6:.0f} MB can be imported.")
     sortie_day = logbook.local_date(session, sortie.flown_at)

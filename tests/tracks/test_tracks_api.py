@@ -189,3 +189,12 @@ def test_the_export_carries_the_track_file_byte_for_byte(instructor_client, sort
     (row,) = exported["tables"]["tracks"]
     assert base64.b64decode(row["raw"]) == track_file()  # RFC 4648 base64, decoded by the standard library
     assert row["sha256"] == hashlib.sha256(track_file()).hexdigest()
+
+
+def test_the_same_file_sent_again_is_the_same_track(instructor_client, sortie, db):
+    first = upload(instructor_client, sortie.id)
+    again = upload(instructor_client, sortie.id, name="resent.csv")
+    assert first.status_code == 201 and again.status_code == 200
+    assert again.json()["id"] == first.json()["id"]
+    db.expire_all()
+    assert db.scalar(select(func.count()).select_from(Track)) == 1
