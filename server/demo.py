@@ -9,15 +9,14 @@ from datetime import UTC, date, datetime, time, timedelta
 
 from sqlalchemy.orm import Session
 
+from server.compute.track_synthetic import DemoAutorotation, synthetic_track_csv
 from server.currency.models import CurrencyRule
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.logbook import service as logbook
+from server.logbook import tracks
 from server.logbook.schemas import AttemptFields, SortieCreate
 from server.people import service as people
 from server.people.routes import DEMO_PASSWORD
-from server.tracks import service as tracks
-from server.tracks.synthetic import DemoAutorotation, synthetic_track_csv
 from server.training.models import Enrolment, Lesson, LessonRequirement, Program, Stage, Standard
 
 SCHOOL_NAME = "Larkspur Rotor School (invented demo)"
@@ -62,7 +61,7 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     """Fill an empty database with the demo school; flights end on `today`."""
     today = today or datetime.now(UTC).date()
     rng = random.Random(seed)
-    school = fleet.school(session)
+    school = people.school(session)
     school.name, school.timezone, school.demo = SCHOOL_NAME, "UTC", True
 
     who = {}

@@ -1,8 +1,8 @@
-"""Tables for sorties and attempts."""
+"""Tables for sorties, attempts, signatures and the recorded tracks kept with sorties."""
 import math
 from datetime import date, datetime
 
-from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, String, Text, text
+from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, LargeBinary, String, Text, text
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from server.db import Base
@@ -131,3 +131,50 @@ class Attempt(Base):
     def track_sha256s(self) -> list[str]:
         """The recorded tracks this attempt's measured figures come from."""
         return sorted({self.measured[name]["track_sha256"] for name in self.measured_fields})
+
+MEANINGS = {
+    "instructor_certifies": (
+        "I certify that this sortie and its practice autorotations took place as recorded, "
+        "and that I observed and graded each one."
+    ),
+    "pilot_acknowledges": "I have read this signed record of my sortie.",
+}
+
+
+class Signature(Base):
+    """Who signed which version of a record, when, meaning what, over which content."""
+
+    __tablename__ = "signatures"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    sortie_id: Mapped[int] = mapped_column(ForeignKey("sorties.id"), index=True)
+    signer_id: Mapped[int] = mapped_column(ForeignKey("people.id"))
+    meaning: Mapped[str] = mapped_column(String(32))
+    statement: Mapped[str] = mapped_column(Text)
+    content_sha256: Mapped[str] = mapped_column(String(64))
+    signed_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
+
+
+class Track(Base):
+    """A recorded flight track as uploaded, part of the sortie's record: kept byte for byte, with its SHA-256."""
+
+    __tablename__ = "tracks"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    sortie_id: Mapped[int] = mapped_column(ForeignKey("sorties.id", ondelete="CASCADE"), index=True)
+    filename: Mapped[str] = mapped_column(String(255), default="")
+    format: Mapped[str] = mapped_column(String(8))
+    sha256: Mapped[str] = mapped_column(String(64))
+    size_bytes: Mapped[int] = mapped_column(Integer)
+    raw: Mapped[bytes] = mapped_column(LargeBinary, deferred=True)
+    points: Mapped[int] = mapped_column(Integer)
+    sample_rate_hz: Mapped[float] = mapped_column(Float)
+    started_at: Mapped[datetime] = mapped_column(UTCDateTime)
+    ended_at: Mapped[datetime] = mapped_column(UTCDateTime)
+    has_doppler_speed: Mapped[bool] = mapped_column(Boolean)
+    ground_ref: Mapped[str] = mapped_column(String(24))  # on_ground_readings or site_elevation
+    # The detections as measured when imported (figures, uncertainties, reasons, the profile for the chart).
+    detections: Mapped[list] = mapped_column(JSON, default=list)
+    notes: Mapped[list] = mapped_column(JSON, default=list)
+    uploaded_by_id: Mapped[int] = mapped_column(ForeignKey("people.id"))
+    created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)

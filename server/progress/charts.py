@@ -4,11 +4,12 @@ Pure drawing: plain numbers and words in, an SVG string out. Colours are present
 style attributes), so the chart obeys a strict content security policy and prints as drawn. Every
 attempt is a shape as well as a colour: a filled circle inside the band, a hollow diamond outside it.
 """
-import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date
 from html import escape
+
+from server.compute.chart_ticks import nice_ticks
 
 WIDTH, HEIGHT = 640, 280
 LEFT, RIGHT, TOP, BOTTOM = 64, 16, 16, 52
@@ -33,24 +34,6 @@ class ChartData:
     lcl: Sequence[float]
     # Beside each value: measured from a recorded track (drawn as a square) rather than observed.
     measured: Sequence[bool] = ()
-
-
-def nice_ticks(low: float, high: float, count: int = 5) -> list[float]:
-    """Round tick values (1, 2 or 5 times a power of ten) covering low..high."""
-    if high <= low:
-        high = low + 1.0
-    raw_step = (high - low) / max(count - 1, 1)
-    magnitude = 10 ** math.floor(math.log10(raw_step))
-    step = next(m * magnitude for m in (1, 2, 5, 10) if m * magnitude >= raw_step)
-    first = math.floor(low / step) * step
-    ticks = []
-    value = first
-    while value <= high + step * 1e-9:
-        ticks.append(round(value, 10))
-        value += step
-    if ticks[-1] < high:
-        ticks.append(round(ticks[-1] + step, 10))
-    return ticks
 
 
 def _fmt(value: float) -> str:

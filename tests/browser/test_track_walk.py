@@ -6,7 +6,7 @@ from playwright.sync_api import expect
 from tests.browser.conftest import axe_violations, sign_in
 from tests.browser.test_sortie_sheet_walk import watch_errors
 from tests.support import make_sortie
-from tests.tracks.test_tracks_api import AIM, track_file
+from tests.logbook.test_tracks_api import AIM, track_file
 
 pytestmark = pytest.mark.browser
 
@@ -43,7 +43,7 @@ def test_instructor_imports_a_track_sees_the_profiles_and_accepts_one(page, worl
 
 def test_the_track_section_has_no_accessibility_violations(new_context, world, db, axe_path, instructor_client):
     """axe-core on the sheet with a track and an accepted detection (axe needs the CSP bypassed)."""
-    from tests.tracks.test_tracks_api import upload
+    from tests.logbook.test_tracks_api import upload
 
     world.site.aim_lat_deg, world.site.aim_lon_deg = AIM
     db.add(world.site)

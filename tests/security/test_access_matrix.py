@@ -17,10 +17,10 @@ from fastapi.testclient import TestClient
 from server.app import create_app
 from server.config import Settings
 from server.logbook import service as logbook
+from server.logbook.models import Track
 from server.logbook.schemas import AttemptFields
 from server.people import service as people
 from server.people.models import Person
-from server.tracks.models import Track
 from tests.conftest import sign_in
 from tests.support import make_sortie
 
@@ -133,7 +133,7 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("POST", "/sorties/{sortie_id}/amend"): CHANGE_PAGE,
     ("GET", "/sorties/{sortie_id}/history"): page(),
 
-    # Recorded tracks: seen with their sortie; imported and accepted by its instructor (tests/tracks).
+    # Recorded tracks: seen with their sortie; imported and accepted by its instructor (tests/logbook/test_tracks_api.py).
     ("POST", "/api/v1/sorties/{sortie_id}/tracks"): CHANGE_API,
     ("GET", "/api/v1/tracks/{track_id}"): api(),
     ("POST", "/api/v1/tracks/{track_id}/detections/{index}/accept"): CHANGE_API,
@@ -226,7 +226,7 @@ def fill(path: str, ids: dict) -> str:
 
 
 def _stored_track(db, sortie, uploader) -> int:
-    """A track row of a sortie, as an import would leave it (the import itself is tested in tests/tracks)."""
+    """A track row of a sortie, as an import would leave it (the import itself is tested in tests/logbook/test_tracks_api.py)."""
     track = Track(sortie_id=sortie.id, format="csv", sha256="0" * 64, size_bytes=1, raw=b"-", points=10,
                   sample_rate_hz=1.0, started_at=sortie.flown_at, ended_at=sortie.flown_at, has_doppler_speed=False,
                   ground_ref="site_elevation", detections=[], notes=[], uploaded_by_id=uploader.id)

@@ -3,8 +3,8 @@ from html.parser import HTMLParser
 
 from sqlalchemy import func, select
 
-from server.tracks.models import Track
-from tests.tracks.test_tracks_api import sortie, track_file, upload  # noqa: F401 (fixture)
+from server.logbook.models import Track
+from tests.logbook.test_tracks_api import sortie, track_file, upload  # noqa: F401 (fixture)
 
 
 class Collect(HTMLParser):

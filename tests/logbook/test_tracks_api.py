@@ -13,7 +13,7 @@ from server.logbook import service as logbook
 from server.logbook.models import Sortie
 from server.records import audit
 from server.records.models import AuditEvent
-from server.tracks.models import Track
+from server.logbook.models import Track
 from tests.compute.flight_model import FT, rows_to_csv, sample, short_sortie
 from tests.support import PASSWORD, make_sortie
 

@@ -3,14 +3,15 @@ from typing import Annotated
 
 from fastapi import APIRouter, File, Form, Request, Response, UploadFile
 
-from server.deps import ApiUser, DbSession
+from server.deps import DbSession
 from server.errors import Invalid
 from server.logbook import service as logbook
 from server.logbook.api import attempt_read
 from server.logbook.schemas import AttemptRead
-from server.tracks import service as tracks
-from server.tracks.models import Track
-from server.tracks.schemas import AcceptRequest, TrackRead
+from server.logbook import tracks
+from server.logbook.models import Track
+from server.logbook.track_schemas import AcceptRequest, TrackRead
+from server.people.deps import ApiUser
 
 router = APIRouter(tags=["tracks"])
 

@@ -3,8 +3,8 @@ from sqlalchemy.orm import Session
 
 from server.compute.flare import expected_flare_band_ft
 from server.logbook.models import Sortie
-from server.tracks import service as tracks
-from server.tracks.chart import profile_svg
+from server.logbook import tracks
+from server.logbook.track_chart import profile_svg
 
 # Label, unit, decimals: in the order an instructor reads an autorotation.
 FIGURE_LABELS = {
@@ -64,7 +64,7 @@ def sheet_tracks(session: Session, *, sortie: Sortie) -> list[dict]:
             detections.append({
                 "index": d["index"], "start_clock": d["start_at"][11:19], "ground": ground, "rows": rows,
                 "used_by": used.get(d["index"], []), "candidates": candidates,
-                # Drawn from numbers, every text escaped (server/tracks/chart.py): the template marks it safe.
+                # Drawn from numbers, every text escaped (server/logbook/track_chart.py): the template marks it safe.
                 "chart": profile_svg(
                     chart_id=f"profile-{track.id}-{d['index']}", profile=d["profile"], flare_band_ft=band,
                     title=f"Profile of autorotation {d['index']} found in the track"),

@@ -10,11 +10,11 @@ from server.compute.track_files import TrackError, read_track
 from server.compute.track_geo import along_landing_direction_ft
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.logbook import service as logbook
-from server.logbook.models import Attempt, Sortie
+from server.logbook.models import Attempt, Sortie, Track
 from server.logbook.schemas import AttemptFields
+from server.people import service as people
 from server.people.models import Person
 from server.records import audit
-from server.tracks.models import Track
 
 # Figures of a detection that fill an attempt's fields when accepted (rotor RPM and the grade stay typed;
 # groundspeeds are not airspeeds, so entry and descent KIAS stay typed too).
@@ -25,7 +25,7 @@ GROUND_TERMINATIONS = ("touchdown", "to_hover")
 
 
 def _require_editable(session: Session, *, actor: Person, sortie: Sortie) -> None:
-    if not (sortie.instructor_id == actor.id or actor.has_role("chief_pilot")):
+    if not logbook.may_edit_sortie(person=actor, sortie=sortie):
         raise Forbidden("Only the sortie's instructor or a chief pilot can import its track.")
     if sortie.state != "draft":
         raise Conflict("This sortie is signed; a track can only be imported into a draft (make an amendment first).")
@@ -83,12 +83,12 @@ def import_track(session: Session, *, actor: Person, sortie: Sortie, data: bytes
         return existing
     if len(data) > max_bytes:
         raise Invalid(f"The file is {len(data) / 1e6:.1f} MB; tracks up to {max_bytes / 1e6:.0f} MB can be imported.")
-    sortie_day = logbook.local_date(session, sortie.flown_at)
+    sortie_day = people.local_date(session, sortie.flown_at)
     try:
         parsed = read_track(data, format=format or None, date_hint=sortie_day)
     except TrackError as error:
         raise Invalid(error.message) from None
-    first_day, last_day = logbook.local_date(session, parsed.started_at), logbook.local_date(session, parsed.ended_at)
+    first_day, last_day = people.local_date(session, parsed.started_at), people.local_date(session, parsed.ended_at)
     if not first_day <= sortie_day <= last_day:
         raise Invalid(f"This track was recorded on {first_day.isoformat()}, but the sortie was flown on "
                       f"{sortie_day.isoformat()}: import the track of that day.")

@@ -2,11 +2,12 @@
 from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
-from server.deps import DbSession, PageUser
+from server.deps import DbSession
 from server.errors import Invalid
 from server.logbook import service as logbook
+from server.logbook import tracks
 from server.logbook.routes import _sheet_context
-from server.tracks import service as tracks
+from server.people.deps import PageUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

@@ -2,10 +2,10 @@
 from sqlalchemy import func, select
 
 from server.db import make_engine, make_session_factory
-from server.tracks.models import Track
+from server.logbook.models import Track
 from tests.support import build_world, make_sortie
 from tests.test_cli import database_url, migrated, one_line_reason, run  # noqa: F401 (fixtures)
-from tests.tracks.test_tracks_api import AIM, track_file
+from tests.logbook.test_tracks_api import AIM, track_file
 
 
 def sortie_in(url: str) -> int:

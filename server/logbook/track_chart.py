@@ -7,7 +7,7 @@ policy holds and the chart prints as drawn.
 """
 from html import escape
 
-from server.progress.charts import nice_ticks
+from server.compute.chart_ticks import nice_ticks
 
 WIDTH, HEIGHT = 640, 240
 LEFT, RIGHT, TOP, BOTTOM = 56, 56, 30, 44

@@ -2,7 +2,7 @@
 from html.parser import HTMLParser
 
 from tests.support import PASSWORD
-from tests.tracks.test_tracks_api import sortie, upload  # noqa: F401 (fixture)
+from tests.logbook.test_tracks_api import sortie, upload  # noqa: F401 (fixture)
 
 
 def signed_sortie_with_one_measured_and_one_typed(client, sortie_id) -> dict:

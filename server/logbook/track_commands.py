@@ -4,10 +4,10 @@ from pathlib import Path
 from server.config import get_settings
 from server.db import make_engine, make_session_factory, transaction
 from server.errors import FlarebookError, NotFound
+from server.logbook import tracks
 from server.logbook.models import Sortie
 from server.people import service as people
 from server.people.models import Person
-from server.tracks import service as tracks
 
 
 def _figure(detection: dict, name: str, unit: str) -> str:

@@ -1,1 +1,0 @@
-"""Recorded flight tracks attached to sorties, and the practice autorotations found in them."""
