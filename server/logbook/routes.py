@@ -19,6 +19,7 @@ from server.logbook import service as logbook
 from server.logbook.models import MEANINGS, Attempt, Sortie
 from server.logbook.page_once import PageOnce
 from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
+from server.logbook.track_views import sheet_tracks
 from server.people import service as people
 from server.people.deps import PageUser, require_role
 from server.people.models import Person
@@ -36,8 +37,6 @@ CONDITION_NAMES = ("oat_c", "altimeter", "altimeter_unit", "wind_dir_deg", "wind
 ATTEMPT_NAMES = tuple(AttemptFields.model_fields)
 # A new attempt starts from the previous one's kind and these figures, marked as carried over.
 CARRIED_NAMES = ("landing_dir_deg", "entry_height_ft", "entry_kias")
-# Sections other areas add to the sortie sheet (each a template fragment given the sheet's context).
-SHEET_SECTIONS: list[str] = []
 
 
 def new_form_key() -> str:
@@ -214,7 +213,7 @@ def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
         "sign_statement": MEANINGS["instructor_certifies"],
         "can_amend": state in ("signed", "acknowledged") and is_editor,
         "can_acknowledge": state == "signed" and sortie.pilot_id == person.id,
-        "sheet_sections": SHEET_SECTIONS,
+        "tracks": sheet_tracks(db, sortie=sortie),
         **_new_attempt_context(sortie, last),
     }
 
