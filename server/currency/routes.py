@@ -1,6 +1,4 @@
 """Pages: the readiness board and its CSV, currency rules, calendar links, a person's own currency."""
-import csv
-import io
 from datetime import date
 
 from fastapi import APIRouter, Query, Request
@@ -11,6 +9,7 @@ from server.compute.currency import format_date
 from server.currency import board, feeds
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
+from server.csv_export import csv_text
 from server.currency.schemas import RuleCreate
 from server.deps import DbSession, PageUser, require_role
 from server.errors import Invalid, NotFound
@@ -79,12 +78,8 @@ def readiness_board_csv(db: DbSession, person: PageUser, as_of: str | None = Non
     require_role(person, "chief_pilot", "admin")
     day, _ = _as_of(db, as_of)
     rows = board.board(db, as_of=day, **_board_filters(role, rule_id, status))
-    out = io.StringIO()
-    writer = csv.writer(out)
-    writer.writerow(board.CSV_HEADER)
-    writer.writerows(row.csv_row() for row in rows)
-    # A byte-order mark lets common spreadsheet programs read the file as UTF-8.
-    return Response("\ufeff" + out.getvalue(), media_type="text/csv; charset=utf-8", headers={
+    text = csv_text(board.CSV_HEADER, (row.csv_row() for row in rows), bom=True)
+    return Response(text, media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
 
 
