@@ -1,8 +1,10 @@
 """Builders for the invented test school; every name and figure is invented for the tests."""
+from contextlib import contextmanager
 from dataclasses import dataclass
 from html.parser import HTMLParser
 from datetime import UTC, datetime
 
+from sqlalchemy import text
 from sqlalchemy.orm import Session
 
 from server.fleet.models import Aircraft, HelicopterType, Site
@@ -105,3 +107,22 @@ def input_values(html: str) -> dict:
     parser = _InputValues()
     parser.feed(html)
     return parser.values
+
+
+@contextmanager
+def audit_table_writable(connection):
+    """Lift the audit table's append-only triggers inside one transaction, as only a test (or someone
+    with the database's own rights) can: on SQLite drop and re-create them, on PostgreSQL run as a
+    replica, for which ordinary triggers do not fire."""
+    if connection.dialect.name == "postgresql":
+        connection.execute(text("SET LOCAL session_replication_role = replica"))
+        yield
+        connection.execute(text("SET LOCAL session_replication_role = origin"))
+        return
+    triggers = connection.execute(text(
+        "SELECT name, sql FROM sqlite_master WHERE type = 'trigger' AND tbl_name = 'audit_events'")).all()
+    for name, _ in triggers:
+        connection.execute(text(f'DROP TRIGGER "{name}"'))
+    yield
+    for _, sql in triggers:
+        connection.execute(text(sql))
