@@ -10,13 +10,14 @@ from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
-from server.deps import SignInRequired
+from server.deps import OwnPasswordRequired, SignInRequired
 from server.errors import FlarebookError
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
 from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
 from server.openapi_errors import describe_errors
+from server.people import account as people_account
 from server.people import api as people_api
 from server.people import routes as people_routes
 from server.progress import api as progress_api
@@ -47,14 +48,16 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.settings = settings
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
+    app.state.sessions.configure(info={"settings": settings})  # services read them with settings_of
 
-    app.add_middleware(WriterQueue)  # writing requests take turns: see server/records/write_queue.py
+    # Writing requests take turns (server/records/write_queue.py); sign-in checks its password outside.
+    app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
     for module in (people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
-    for module in (people_routes, logbook_routes):
+    for module in (people_routes, people_account, logbook_routes):
         app.include_router(module.router)
     app.include_router(progress_api.router, prefix="/api/v1")
     app.include_router(training_api.router, prefix="/api/v1")
@@ -102,6 +105,13 @@ def _add_error_handlers(app: FastAPI) -> None:
             return JSONResponse({"detail": summary, "errors": errors}, status_code=422)
         return render(request, "error.html", {"message": summary, "status": 422}, status_code=422,
                       fragment="_error.html")
+
+    @app.exception_handler(OwnPasswordRequired)
+    async def _own_password(request: Request, exc: OwnPasswordRequired):
+        if is_htmx(request):
+            return JSONResponse({"detail": "Choose your own password first."}, status_code=403,
+                                headers={"HX-Redirect": "/account"})
+        return RedirectResponse("/account", status_code=303)
 
     @app.exception_handler(SignInRequired)
     async def _sign_in(request: Request, exc: SignInRequired):

@@ -15,7 +15,6 @@ from server.logbook.models import Attempt, Sortie
 from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
 from server.people import service as people
 from server.people.models import Person
-from server.people.security import verify_password
 from server.records import audit
 from server.records.models import MEANINGS, Signature
 from server.training.service import standard_for
@@ -274,10 +273,12 @@ def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: st
                      reason="not the assigned instructor")
         raise Forbidden("Only the sortie's assigned instructor can sign it.")
     _require_draft(sortie)
-    if not verify_password(actor.password_hash, password):
+    try:
+        people.check_signing_password(session, person=actor, password=password)
+    except Invalid as refusal:
         audit.append(session, actor_id=actor.id, action="sign_refused", entity="sortie", entity_id=sortie.id,
                      reason="wrong password")
-        raise Invalid("That password is not right; the sortie stays unsigned.")
+        raise Invalid(refusal.message + " The sortie stays unsigned.") from None
     return record_instructor_signature(session, actor=actor, sortie=sortie)
 
 
@@ -301,6 +302,7 @@ def acknowledge_sortie(session: Session, *, actor: Person, sortie: Sortie) -> Si
     """The pilot acknowledges having read a signed sortie."""
     if sortie.pilot_id != actor.id:
         raise Forbidden("Only the pilot of this sortie can acknowledge it.")
+    people.require_own_password(actor)
     if sortie.state != "signed" or superseded_by(session, sortie) is not None:
         raise Conflict("Only the latest signed version of a sortie can be acknowledged.")
     if any(s.meaning == "pilot_acknowledges" and s.signer_id == actor.id for s in signatures(session, sortie)):

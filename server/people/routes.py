@@ -1,14 +1,25 @@
 """Pages: sign-in, sign-out and each person's home page."""
 from typing import Annotated
 
-from fastapi import APIRouter, Form, Request
+from fastapi import APIRouter, Depends, Form, Request
 from fastapi.responses import RedirectResponse
+from starlette.concurrency import run_in_threadpool
 
-from server.deps import BrowserSession, DbSession, PageUser, check_csrf, cookie_name, secure_cookies
+from server.deps import (
+    CSRF_FIELD,
+    CSRF_HEADER,
+    BrowserSession,
+    DbSession,
+    PageUser,
+    check_csrf,
+    cookie_name,
+    secure_cookies,
+)
 from server.errors import Unauthorized
 from server.fleet import service as fleet
 from server.logbook import service as logbook
 from server.people import service as people
+from server.people.security import same_secret
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -44,15 +55,37 @@ def signin_page(request: Request, db: DbSession, user_session: BrowserSession):
     return response
 
 
+async def checked_sign_in(request: Request, email: Annotated[str, Form(max_length=254)],
+                          password: Annotated[str, Form(max_length=1000)]) -> people.SignInCheck | None:
+    """The password check, in a read-only session of its own before the request's writing transaction
+    begins: the slow hash never holds the write lock (and /signin skips the writer queue). None when
+    the form does not carry its pre-sign-in session's CSRF token; the route then refuses it."""
+    client = request.client.host if request.client else ""
+    cookie = request.cookies.get(cookie_name(request))
+    submitted = str((await request.form()).get(CSRF_FIELD, "")) or request.headers.get(CSRF_HEADER, "")
+
+    def check():
+        with request.app.state.sessions() as session:
+            row = people.load_session(session, cookie_value=cookie, settings=request.app.state.settings) \
+                if cookie else None
+            if row is None or not submitted or not same_secret(submitted, row.csrf_token):
+                return None
+            return people.check_sign_in(session, email=email, password=password, client=client)
+
+    return await run_in_threadpool(check)
+
+
+CheckedSignIn = Annotated[people.SignInCheck | None, Depends(checked_sign_in)]
+
+
 @router.post("/signin")
-async def signin(request: Request, db: DbSession, user_session: BrowserSession,
-                 email: Annotated[str, Form(max_length=254)], password: Annotated[str, Form(max_length=1000)]):
+async def signin(request: Request, check: CheckedSignIn, db: DbSession, user_session: BrowserSession,
+                 email: Annotated[str, Form(max_length=254)]):
     if user_session is None:
         return RedirectResponse("/signin", status_code=303)
     await check_csrf(request, user_session)
-    client = request.client.host if request.client else ""
     try:
-        person = people.authenticate(db, email=email, password=password, client=client)
+        person = people.record_sign_in(db, check=check)
     except Unauthorized as refusal:
         db.commit()  # keep the refusal on record (throttle and audit) though the answer is an error
         school = fleet.school(db)
@@ -62,7 +95,8 @@ async def signin(request: Request, db: DbSession, user_session: BrowserSession,
         }, status_code=401)
     people.end_session(db, row=user_session)
     cookie_value, _ = people.start_session(db, person=person)
-    response = RedirectResponse("/", status_code=303)
+    # A password someone else set lets its owner in only to choose their own.
+    response = RedirectResponse("/account" if person.password_must_change else "/", status_code=303)
     _set_cookie(request, response, cookie_value)
     return response
 

@@ -1,4 +1,5 @@
 """Shapes of people in the API."""
+from datetime import datetime
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field
@@ -34,3 +35,19 @@ class MeRead(BaseModel):
     id: int
     name: str
     roles: list[str]
+
+
+class PasswordChange(BaseModel):
+    """Choose one's own password; the current one proves it is really its owner."""
+
+    model_config = ConfigDict(extra="forbid")
+    current_password: str = Field(min_length=1, max_length=1000)
+    new_password: str = Field(min_length=8, max_length=1000)
+
+
+class TokenRead(BaseModel):
+    id: int
+    label: str
+    created_at: datetime
+    expires_at: datetime | None
+    revoked: bool

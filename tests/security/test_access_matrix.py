@@ -81,6 +81,15 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("PATCH", "/api/v1/people/{person_id}"): CHANGE_API,
     ("POST", "/signout"): CHANGE_PAGE,
     ("GET", "/"): page(),
+    ("POST", "/api/v1/me/password"): CHANGE_API,
+    ("GET", "/api/v1/me/tokens"): api(),
+    ("DELETE", "/api/v1/me/tokens/{token_id}"): CHANGE_API,
+    ("GET", "/account"): page(),
+    ("POST", "/account/password"): CHANGE_PAGE,
+    ("POST", "/account/tokens/{token_id}/revoke"): CHANGE_PAGE,
+    ("POST", "/account/calendar-links/{feed_id}/revoke"): CHANGE_PAGE,
+    ("GET", "/setup/people/{person_id}/reset-password"): page(CHIEF_ADMIN),
+    ("POST", "/setup/people/{person_id}/reset-password"): CHANGE_PAGE,
 
     # Fleet and setup.
     ("GET", "/api/v1/types"): api(),
