@@ -1,4 +1,6 @@
 """The application factory."""
+from contextlib import asynccontextmanager
+
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import JSONResponse, RedirectResponse
@@ -6,6 +8,7 @@ from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
 from server.bad_input import refuse_out_of_range
+from server.body_limit import BodyLimit
 from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
@@ -27,7 +30,7 @@ from server.safety import routes as safety_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
 from server.records import routes as records_routes
-from server.records.refusals import record_refusal
+from server.records.refusals import StrangerTally, record_refusal
 from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
 from server.training import standards_api, standards_routes
@@ -36,7 +39,13 @@ from server.web import is_htmx, render
 
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or get_settings()
+    @asynccontextmanager
+    async def lifespan(app: FastAPI):
+        yield
+        app.state.stranger_tally.write(app.state.sessions)  # what was counted since the last entry
+
     app = FastAPI(
+        lifespan=lifespan,
         title="Flarebook",
         version="0.1.0",
         summary="Practice-autorotation training records for helicopter schools.",
@@ -49,9 +58,13 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
     app.state.sessions.configure(info={"settings": settings})  # services read them with settings_of
+    app.state.stranger_tally = StrangerTally(settings.stranger_audit_seconds)
 
     # Writing requests take turns (server/records/write_queue.py); sign-in checks its password outside.
     app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
+    # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
+    app.add_middleware(BodyLimit, default_bytes=settings.max_body_bytes,
+                       larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths])
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")

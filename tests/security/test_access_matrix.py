@@ -13,13 +13,14 @@ from datetime import UTC, datetime
 import pytest
 from fastapi.routing import iter_route_contexts
 from fastapi.testclient import TestClient
+from sqlalchemy import select
 
 from server.app import create_app
 from server.config import Settings
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
 from server.people import service as people
-from server.people.models import Person
+from server.people.models import ApiToken, Person
 from tests.conftest import sign_in
 from tests.support import make_sortie
 
@@ -262,7 +263,8 @@ def school(app, db, world):
     rule = made(chief.post("/api/v1/rules", json={"name": "Matrix rule", "window_days": 90, "min_count": 1}))
     feed = made(chief.post("/api/v1/calendar-feeds", json={"person_id": world.student.id}))
     secret = re.search(r"/calendar/([^/]+)\.ics", feed["url"]).group(1)
-    common = {"type_id": world.helicopter.id, "program_id": program["id"], "lesson_id": lesson_id,
+    token_id = db.scalars(select(ApiToken.id).where(ApiToken.person_id == world.chief.id)).first()
+    common = {"token_id": token_id, "type_id": world.helicopter.id, "program_id": program["id"], "lesson_id": lesson_id,
               "standard_id": standard["id"], "rule_id": rule["id"], "feed_id": feed["id"], "secret": secret}
     return {
         "own": common | {"person_id": world.student.id, "pilot_id": world.student.id, "sortie_id": own.id,
