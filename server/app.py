@@ -8,7 +8,7 @@ from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
 from server.bad_input import refuse_out_of_range
-from server.body_limit import BodyLimit
+from server.request_bodies import BodyLimit, TextFieldsOnly
 from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
@@ -62,6 +62,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
 
     # Writing requests take turns (server/records/write_queue.py); sign-in checks its password outside.
     app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
+    app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths)
     # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
     app.add_middleware(BodyLimit, default_bytes=settings.max_body_bytes,
                        larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths])

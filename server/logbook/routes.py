@@ -75,7 +75,9 @@ async def sortie_create(request: Request, db: DbSession, person: PageUser):
     raw = {**values}
     if values["flown_at"]:
         try:
-            values["flown_at"] = datetime.fromisoformat(values["flown_at"]).replace(tzinfo=_timezone(db))
+            typed = datetime.fromisoformat(values["flown_at"])
+            # A time typed with an offset keeps it; a bare local time is the school's.
+            values["flown_at"] = typed if typed.tzinfo else typed.replace(tzinfo=_timezone(db))
         except ValueError:
             values["flown_at"] = "not a date"
     data, errors, message = validate(SortieCreate, values)

@@ -1,23 +1,34 @@
 """Sorties and attempts: create, edit while a draft, sign, acknowledge, amend."""
 import hashlib
-from datetime import datetime
+from datetime import UTC, datetime, timedelta
 from zoneinfo import ZoneInfo
+
+from pydantic import ValidationError
 
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
 from server.compute.atmosphere import inhg_to_hpa
+from server.config import settings_of
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.fleet import service as fleet
 from server.fleet.models import Aircraft, Site
 from server.logbook import derive
 from server.logbook.models import Attempt, Sortie
-from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
+from server.logbook.schemas import (
+    KG_PER_LB,
+    AttemptFields,
+    ConditionsFields,
+    ConditionsRequest,
+    SortieCreate,
+    SortieUpdate,
+)
 from server.people import service as people
 from server.people.models import Person
 from server.records import audit
 from server.records.models import MEANINGS, Signature
 from server.training.service import standard_for
+from server.types import utcnow
 
 ATTEMPT_FIELDS = tuple(AttemptFields.model_fields)
 SORTIE_RECORD_FIELDS = (
@@ -25,6 +36,10 @@ SORTIE_RECORD_FIELDS = (
     "pilot_id", "site_id", "wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa", "metar",
     "takeoff_weight_lb", "remarks", "pressure_altitude_ft", "density_altitude_ft",
 )
+METAR_WORDS = {"altimeter_hpa": "an altimeter setting (hPa) of", "oat_c": "a temperature (°C) of",
+               "wind_kt": "a wind speed (kt) of", "gust_kt": "a gust speed (kt) of", "wind_dir_deg": "a wind direction of"}
+# A clock set a few hours ahead, or a flight logged in another time zone, is not an error; a day is.
+FUTURE_ALLOWANCE = timedelta(days=1)
 ATTEMPT_RECORD_FIELDS = ATTEMPT_FIELDS + (
     "sequence", "score", "flags", "standard_id", "flare_band_low_ft", "flare_band_high_ft",
 )
@@ -136,13 +151,31 @@ def _fill_from_metar(sortie: Sortie) -> None:
     result = derive.conditions(ConditionsRequest(metar=sortie.metar))
     if result.message:
         raise Invalid(result.message)
+    carried = {name: getattr(result, name) for name in result.filled_from_metar}
+    try:  # the METAR's figures meet the same ranges as typed ones (Q0000, A9999, M99/M99 do not)
+        ConditionsFields.model_validate(carried)
+    except ValidationError as error:
+        raise Invalid("The METAR gives " + "; ".join(
+            f"{METAR_WORDS.get(item['loc'][0], item['loc'][0])} {carried[item['loc'][0]]:g}, which "
+            f"{item['msg'].lower().replace('input should be', 'should be')}"
+            for item in error.errors() if item["loc"]) + ". Check the report, or enter the conditions by hand.") from None
     for name in ("wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa"):
         if getattr(sortie, name) is None and name in result.filled_from_metar:
             setattr(sortie, name, getattr(result, name))
 
 
+def check_flown_at(session: Session, flown_at: datetime) -> None:
+    """A flight not before the school's records begin, nor more than a day ahead: else a typing error."""
+    begins = settings_of(session).records_begin
+    if flown_at.astimezone(UTC).date() < begins:
+        raise Invalid(f"flown_at is before {begins.isoformat()}, when this school's records begin; check the year.")
+    if flown_at > utcnow() + FUTURE_ALLOWANCE:
+        raise Invalid("flown_at is more than a day in the future; check the date.")
+
+
 def create_sortie(session: Session, *, actor: Person, data: SortieCreate) -> Sortie:
     """Start a sortie; the instructor is the caller unless a chief pilot names another."""
+    check_flown_at(session, data.flown_at)
     if not actor.has_role("instructor", "chief_pilot"):
         raise Forbidden("Only instructors and chief pilots start sorties.")
     instructor_id = data.instructor_id if data.instructor_id is not None else actor.id
@@ -180,6 +213,7 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
     before = sortie_record(sortie)
     fields_set = data.model_fields_set
     if "flown_at" in fields_set and data.flown_at is not None:
+        check_flown_at(session, data.flown_at)
         sortie.flown_at = data.flown_at
     if "aircraft_id" in fields_set and data.aircraft_id is not None:
         if session.get(Aircraft, data.aircraft_id) is None:

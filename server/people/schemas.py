@@ -4,10 +4,12 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field
 
+from server.input_rules import StrictInput
+
 Role = Literal["student", "instructor", "chief_pilot", "admin"]
 
 
-class PersonCreate(BaseModel):
+class PersonCreate(StrictInput):
     model_config = ConfigDict(extra="forbid")
     name: str = Field(min_length=1, max_length=120)
     email: str = Field(min_length=3, max_length=254)
@@ -15,7 +17,7 @@ class PersonCreate(BaseModel):
     password: str = Field(min_length=8, max_length=1000)
 
 
-class PersonUpdate(BaseModel):
+class PersonUpdate(StrictInput):
     model_config = ConfigDict(extra="forbid")
     name: str | None = Field(default=None, min_length=1, max_length=120)
     roles: list[Role] | None = Field(default=None, min_length=1)
@@ -37,7 +39,7 @@ class MeRead(BaseModel):
     roles: list[str]
 
 
-class PasswordChange(BaseModel):
+class PasswordChange(StrictInput):
     """Choose one's own password; the current one proves it is really its owner."""
 
     model_config = ConfigDict(extra="forbid")

@@ -16,7 +16,7 @@ from fastapi.testclient import TestClient
 from sqlalchemy import func, select
 
 from server.app import create_app
-from server.body_limit import BodyLimit
+from server.request_bodies import BodyLimit
 from server.config import Settings
 from server.people import service as people
 from server.people.models import Person
