@@ -11,6 +11,7 @@ from server.migrate import upgrade
 from server.people import service as people
 from server.people.models import ROLES, Person
 from server.records import commands as records_commands
+from server.signed_records import RECORD_CHECKS
 
 
 def _sessions():
@@ -96,7 +97,8 @@ def build_parser() -> argparse.ArgumentParser:
     revoke = token.add_parser("revoke", help="revoke every API token of a person at once")
     revoke.add_argument("email")
     revoke.set_defaults(run=cmd_token_revoke)
-    records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
+    # backup, restore, export, audit verify, audit head; with every area's signed-record check
+    records_commands.add_commands(sub, record_checks=RECORD_CHECKS)
     return parser
 
 

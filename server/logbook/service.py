@@ -327,8 +327,10 @@ def record_instructor_signature(session: Session, *, actor: Person, sortie: Sort
                           statement=MEANINGS["instructor_certifies"], content_sha256=content_hash(sortie))
     session.add(signature)
     session.flush()
+    # The record as signed goes into the chain too, so a later check can say which field changed.
     audit.append(session, actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
-                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning})
+                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning,
+                        "record": sortie_record(sortie)})
     return signature
 
 

@@ -1,0 +1,4 @@
+"""Every kind of signed record and its check, in one place, for `audit verify`, `backup` and `restore`."""
+from server.logbook.proof import check_signed_sorties
+
+RECORD_CHECKS = (check_signed_sorties,)
