@@ -68,8 +68,14 @@ NOT_RECORDS = frozenset(SKIPPED_TABLES | {"alembic_version"})
 def _tables_with_rows(connection: sqlite3.Connection) -> list[str]:
     names = [r[0] for r in connection.execute(
         "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")]
-    return [name for name in names if name not in NOT_RECORDS
-            and connection.execute(f'SELECT 1 FROM "{name}" LIMIT 1').fetchone() is not None]
+    return [name for name in names if name not in NOT_RECORDS and connection.execute(
+        f"SELECT 1 FROM {_identifier(name)} LIMIT 1").fetchone() is not None]  # nosec B608: quoted identifier
+
+
+def _identifier(name: str) -> str:
+    """A table name from the file itself, quoted as an SQL identifier (a hostile file may name one oddly)."""
+    return '"' + name.replace('"', '""') + '"'
+
 
 
 def _look_alike(connection: sqlite3.Connection) -> str | None:
