@@ -22,9 +22,13 @@ RECORDED_STATUSES = (403, 404)
 
 
 def route_template(request: Request) -> str:
-    """The matched route's path with its parameters unfilled; the bare path only when no route matched."""
-    route = request.scope.get("route")
-    return getattr(route, "path", None) or "(no route)"
+    """The path asked for with each path parameter's value put back as its name: /calendar/{secret}.ics."""
+    segments = request.url.path[:200].split("/")
+    for name, value in request.path_params.items():
+        value = str(value)
+        segments = ["{" + name + "}" + segment[len(value):] if value and (segment == value or segment.startswith(
+            value + ".")) else segment for segment in segments]
+    return "/".join(segments)
 
 
 def _entity(request: Request) -> tuple[str, str | None]:
