@@ -8,37 +8,38 @@ from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
 from server.bad_input import refuse_out_of_range
-from server.request_bodies import BodyLimit, TextFieldsOnly
 from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
-from server.deps import OwnPasswordRequired, SignInRequired
 from server.errors import FlarebookError
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
 from server.logbook import api as logbook_api
+from server.logbook import history_routes, people_api as visible_people_api, type_page_routes
 from server.logbook import routes as logbook_routes
 from server.openapi_errors import describe_errors
-from server.people import account as people_account
+from server import account as people_account
 from server.people import api as people_api
 from server.people import routes as people_routes
+from server.people.deps import OwnPasswordRequired, SignInRequired
 from server.progress import api as progress_api
+from server.progress import program_api, program_routes
 from server.progress import routes as progress_routes
+from server.records.refusals import StrangerTally, record_refusal
+from server.request_bodies import BodyLimit, TextFieldsOnly
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
-from server.training import api as training_api
-from server.training import routes as training_routes
-from server.records import routes as records_routes
-from server.records.refusals import StrangerTally, record_refusal
-from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
+from server.training import api as training_api
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
+from server.write_queue import WriterQueue
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or get_settings()
+
     @asynccontextmanager
     async def lifespan(app: FastAPI):
         yield
@@ -60,7 +61,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.sessions.configure(info={"settings": settings})  # services read them with settings_of
     app.state.stranger_tally = StrangerTally(settings.stranger_audit_seconds)
 
-    # Writing requests take turns (server/records/write_queue.py); sign-in checks its password outside.
+    # Writing requests take turns (server/write_queue.py); sign-in checks its password outside.
     app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
     app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths)
     # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
@@ -69,20 +70,21 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
-    for module in (people_api, fleet_api, logbook_api):
+    for module in (people_api, visible_people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
     for module in (people_routes, people_account, logbook_routes):
         app.include_router(module.router)
     app.include_router(progress_api.router, prefix="/api/v1")
     app.include_router(training_api.router, prefix="/api/v1")
+    app.include_router(program_api.router, prefix="/api/v1")
     app.include_router(progress_routes.router)
-    app.include_router(training_routes.router)
+    app.include_router(program_routes.router)
     app.include_router(safety_api.router, prefix="/api/v1")
     app.include_router(safety_routes.router)
     app.include_router(standards_api.router, prefix="/api/v1")
-    for module in (fleet_routes, standards_routes):
+    for module in (fleet_routes, type_page_routes, standards_routes):
         app.include_router(module.router)
-    app.include_router(records_routes.router)
+    app.include_router(history_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

@@ -7,9 +7,9 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.logbook import service as logbook
-from server.logbook.models import Sortie
+from server.logbook.models import Signature, Sortie
 from server.records import audit
-from server.records.models import AuditEvent, Signature
+from server.records.models import AuditEvent
 from server.records.proof import SignedProblem, differences
 
 # The chain entry each meaning of signature is recorded with.

@@ -1,19 +1,18 @@
 """Accounts, sign-in, sessions, tokens and who may see whose records."""
 from dataclasses import dataclass
-from datetime import timedelta
+from datetime import date, datetime, timedelta
+from zoneinfo import ZoneInfo
 
-from sqlalchemy import delete, func, or_, select, update
+from sqlalchemy import delete, func, select, update
 from sqlalchemy.orm import Session
 
 from server.config import Settings, settings_of
-from server.currency.models import CalendarFeed
 from server.errors import Conflict, Forbidden, Invalid, NotFound, Unauthorized
-from server.logbook.models import Sortie
-from server.people.models import ROLES, ApiToken, Person, PersonRole, SignInFailure, UserSession
+from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
 from server.people.security import hash_password, new_secret, sha256_hex, verify_password
 from server.records import audit
-from server.training.models import Enrolment
 from server.types import utcnow
+from server.vocabulary import ROLES
 
 # Sign-in throttling: after this many refusals for one email in the window, refuse without checking.
 THROTTLE_LIMIT = 10
@@ -24,7 +23,10 @@ MIN_PASSWORD_LENGTH = 8
 
 
 class PasswordRefused(Invalid):
-    """A wrong (or throttled) password: the caller commits, so the refusal counts and stays on record."""
+    """A wrong (or throttled) password: kept on record, so the refusal counts towards the throttle."""
+
+    def __init__(self, message: str):
+        super().__init__(message, keep_record=True)
 
 
 def normalise_email(email: str) -> str:
@@ -32,7 +34,7 @@ def normalise_email(email: str) -> str:
 
 
 def create_person(session: Session, *, name: str, email: str, roles: list[str], password: str,
-                  actor_id: int | None = None) -> Person:
+                  actor: Person | None = None) -> Person:
     """Add a person with a hashed password; refuse a duplicate email or an unknown role."""
     email = normalise_email(email)
     if not name.strip():
@@ -51,12 +53,12 @@ def create_person(session: Session, *, name: str, email: str, roles: list[str], 
     person.role_rows = [PersonRole(role=r) for r in sorted(set(roles))]
     session.add(person)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="person", entity_id=person.id,
+    audit.append(session, actor_id=actor.id if actor else None, action="create", entity="person", entity_id=person.id,
                  after={"name": person.name, "email": person.email, "roles": person.roles})
     return person
 
 
-def update_person(session: Session, *, person: Person, actor_id: int, name: str | None = None,
+def update_person(session: Session, *, person: Person, actor: Person, name: str | None = None,
                   roles: list[str] | None = None, active: bool | None = None,
                   password: str | None = None) -> Person:
     """Change a person's name, roles or active flag; a password given here is a reset (see reset_password)."""
@@ -77,10 +79,9 @@ def update_person(session: Session, *, person: Person, actor_id: int, name: str 
             revoke_all_tokens(session, person_id=person.id)
     session.flush()
     if before != person_snapshot(person):
-        audit.append(session, actor_id=actor_id, action="edit", entity="person", entity_id=person.id,
+        audit.append(session, actor_id=actor.id, action="edit", entity="person", entity_id=person.id,
                      before=before, after=person_snapshot(person))
     if password is not None:
-        actor = session.get(Person, actor_id)
         reset_password(session, actor=actor, person=person, temporary=password)
     return person
 
@@ -147,7 +148,7 @@ def record_sign_in(session: Session, *, check: SignInCheck) -> Person:
         session.add(SignInFailure(email=check.email, client=check.client[:64]))
         audit.append(session, actor_id=None, action="sign_in_refused", entity="person",
                      entity_id=None, after={"email": check.email})
-        raise Unauthorized(check.refusal)
+        raise Unauthorized(check.refusal, keep_record=True)
     person = session.get(Person, check.person_id)
     audit.append(session, actor_id=person.id, action="sign_in", entity="person", entity_id=person.id)
     return person
@@ -189,8 +190,9 @@ def _check_new_password(password: str) -> None:
 
 
 def reset_password(session: Session, *, actor: Person, person: Person, temporary: str | None = None) -> str:
-    """Someone else sets a one-time password: every session, API token and calendar link of the person
-    ends, and the new password only lets its owner sign in to choose their own. Returns the password."""
+    """Someone else sets a one-time password: every session and API token of the person ends, and the
+    new password only lets its owner sign in to choose their own. Returns the password.
+    (Calendar links belong to currency, above people: the reset page revokes them too.)"""
     if actor.id == person.id:
         raise Invalid("Change your own password with your current one (My account), not by a reset.")
     temporary = temporary if temporary is not None else new_secret()[:20]
@@ -199,14 +201,11 @@ def reset_password(session: Session, *, actor: Person, person: Person, temporary
     person.password_must_change = True
     sessions = end_all_sessions(session, person_id=person.id)
     tokens = revoke_all_tokens(session, person_id=person.id)
-    feeds = session.execute(update(CalendarFeed).where(CalendarFeed.owner_id == person.id,
-                                                       CalendarFeed.revoked_at.is_(None))
-                            .values(revoked_at=utcnow())).rowcount
     session.flush()
     audit.append(session, actor_id=actor.id, action="password_reset", entity="person", entity_id=person.id,
                  reason=f"password reset by {actor.name}",
                  after={"by": actor.id, "sessions_ended": sessions, "tokens_revoked": tokens,
-                        "calendar_links_revoked": feeds, "must_choose_own": True})
+                        "must_choose_own": True})
     return temporary
 
 
@@ -330,30 +329,26 @@ def revoke_all_tokens(session: Session, *, person_id: int, actor_id: int | None 
     return count
 
 
-def student_ids_of(session: Session, instructor_id: int) -> set[int]:
-    """Pilots an instructor teaches: enrolled with them, or flown with them."""
-    enrolled = session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id))
-    flown = session.scalars(select(Sortie.pilot_id).where(Sortie.instructor_id == instructor_id).distinct())
-    return set(enrolled) | set(flown)
+def school(session: Session) -> School:
+    """The school row, made on first use (a new database starts in UTC)."""
+    row = session.get(School, 1)
+    if row is None:
+        row = School(id=1, name="Flight school", timezone="UTC")
+        session.add(row)
+        session.flush()
+    return row
 
 
-def can_view_pilot(session: Session, *, viewer: Person, pilot_id: int) -> bool:
-    """Students see themselves, instructors their students, chief pilots and admins everyone."""
-    if viewer.sees_everyone or viewer.id == pilot_id:
-        return True
-    if viewer.has_role("instructor"):
-        return pilot_id in student_ids_of(session, viewer.id)
-    return False
+def school_zone(session: Session) -> ZoneInfo:
+    """The school's time zone: it decides which local date a flight counts on."""
+    return ZoneInfo(school(session).timezone)
 
 
-def visible_people(session: Session, *, viewer: Person) -> list[Person]:
-    query = select(Person).order_by(Person.name)
-    if not viewer.sees_everyone:
-        ids = {viewer.id}
-        if viewer.has_role("instructor"):
-            ids |= student_ids_of(session, viewer.id)
-            # Instructors also need to pick any student when starting a sortie.
-            query = query.where(or_(Person.id.in_(ids), Person.role_rows.any(PersonRole.role == "student")))
-        else:
-            query = query.where(Person.id.in_(ids))
-    return list(session.scalars(query))
+def school_today(session: Session) -> date:
+    """Today's date at the school: currency, trends and digests count the school's local dates."""
+    return datetime.now(school_zone(session)).date()
+
+
+def local_date(session: Session, moment: datetime) -> date:
+    """The school's local date of a moment."""
+    return moment.astimezone(school_zone(session)).date()

@@ -1,11 +1,15 @@
-"""Pages: "My account" (one's own password, API tokens and calendar links) and a password reset by a chief pilot."""
+"""Pages: "My account" (one's own password, API tokens and calendar links) and a password reset by a chief pilot.
+
+At the top of the layers, beside the app: the page gathers what people and currency each keep.
+"""
 from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
 from server.currency import feeds
-from server.deps import DbSession, PageUser, SetupUser
+from server.deps import DbSession
 from server.errors import Invalid
 from server.people import service as people
+from server.people.deps import PageUser, SetupUser
 from server.types import utcnow
 from server.web import render
 
@@ -37,10 +41,7 @@ async def my_password_change(request: Request, db: DbSession, person: PageUser):
         people.change_own_password(db, person=person, current_password=current, new_password=new,
                                    client=request.client.host if request.client else "",
                                    keep_session_id=request.state.user_session.id)
-    except people.PasswordRefused as refusal:
-        db.commit()  # the wrong current password counts towards the sign-in throttle, and is audited
-        return _account_page(request, db, person, error=refusal.message, status_code=422)
-    except Invalid as refusal:
+    except Invalid as refusal:  # a wrong current password stays on record: the answer is a page, not a raise
         return _account_page(request, db, person, error=refusal.message, status_code=422)
     return RedirectResponse(request.url_for("my_account").include_query_params(changed="true"), status_code=303)
 
