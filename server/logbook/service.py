@@ -176,6 +176,10 @@ def create_sortie(session: Session, *, actor: Person, data: SortieCreate) -> Sor
     instructor_id = data.instructor_id if data.instructor_id is not None else actor.id
     if instructor_id != actor.id and not actor.has_role("chief_pilot"):
         raise Forbidden("An instructor starts sorties in their own name.")
+    if not actor.has_role("chief_pilot") and not access.can_view_pilot(session, viewer=actor, pilot_id=data.pilot_id):
+        # Else an empty sortie would be a way in to any pilot's records; a chief pilot assigns others.
+        raise Forbidden("You can start a sortie only for a pilot enrolled with you; a chief pilot can assign "
+                        "you another.")
     instructor = session.get(Person, instructor_id)
     if instructor is None or not instructor.has_role("instructor"):
         raise Invalid("instructor_id does not name an instructor.")

@@ -236,3 +236,27 @@ def test_the_check_runs_on_the_schools_own_database(app, db, world):
     found = [str(p) for p in proof.check_signed(db, RECORD_CHECKS)]
     assert any(f"sortie {sortie.id} version 1" in p and "flare_height_ft is 120.0 now, 90.0 when signed" in p
                for p in found), found
+
+
+def test_a_stage_check_changed_after_signing_is_named(app, db, world, chief_client):
+    """Stage checks are signed with the checker's password: the chain's entry keeps what was signed."""
+    from sqlalchemy import update
+
+    from server.training.models import StageCheck
+    from tests.support import PASSWORD
+
+    program = chief_client.api("POST", "/api/v1/programs", json={"name": "Checked syllabus", "stages": [
+        {"name": "Stage one", "lessons": [{"name": "Straight-ins", "requirements": [
+            {"maneuver": "straight_in", "termination": "touchdown", "attempts_needed": 1}]}]}]}).json()
+    enrolment = chief_client.api("POST", f"/api/v1/programs/{program['id']}/enrolments", json={
+        "student_id": world.student.id, "instructor_id": world.instructor.id, "started_on": "2026-11-01"}).json()
+    signed = chief_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/stage-checks", json={
+        "stage_id": program["stages"][0]["id"], "passed": False, "remarks": "flare too high", "password": PASSWORD})
+    assert signed.status_code == 201, signed.text
+    assert proof.check_signed(db, RECORD_CHECKS) == []
+    db.execute(update(StageCheck).values(passed=True, remarks="fine"))
+    db.commit()
+    db.expire_all()
+    found = [str(p) for p in proof.check_signed(db, RECORD_CHECKS)]
+    assert any("passed is True now, False when signed" in p for p in found), found
+    assert any("remarks is 'fine' now, 'flare too high' when signed" in p for p in found), found
