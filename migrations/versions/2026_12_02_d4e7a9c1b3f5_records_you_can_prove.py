@@ -6,7 +6,7 @@ PostgreSQL one statement-level trigger that raises for UPDATE, DELETE and TRUNCA
 migration that rebuilds audit_events in SQLite batch mode must create the triggers again.
 
 Revision ID: d4e7a9c1b3f5
-Revises: c3a1f0b7d2e4
+Revises: afa3bff855a7
 Created: 2026-12-02 22:20:00
 """
 from datetime import timedelta
@@ -15,7 +15,7 @@ import sqlalchemy as sa
 from alembic import op
 
 revision = 'd4e7a9c1b3f5'
-down_revision = 'c3a1f0b7d2e4'
+down_revision = 'afa3bff855a7'
 branch_labels = None
 depends_on = None
 
