@@ -24,8 +24,8 @@ class Settings(BaseSettings):
     records_begin: date = date(1980, 1, 1)
     # Request bodies above this size are refused before they are read (413).
     max_body_bytes: int = 1_000_000
-    # Routes that take a flight track upload accept up to this much; "{name}" matches one path segment.
-    track_upload_max_bytes: int = 20_000_000
+    # Routes that take a flight track upload (track_upload_max_bytes below) and the only ones that
+    # take a file; "{name}" matches one path segment.
     track_upload_paths: tuple[str, ...] = ("/api/v1/sorties/{id}/tracks", "/sorties/{id}/tracks")
     # Refusals of people not signed in are counted and written to the audit chain as one entry per period.
     stranger_audit_seconds: int = 60
