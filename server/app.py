@@ -1,4 +1,6 @@
 """The application factory."""
+from contextlib import asynccontextmanager
+
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import JSONResponse, RedirectResponse
@@ -19,13 +21,15 @@ from server.logbook import history_routes, people_api as visible_people_api, typ
 from server.logbook import routes as logbook_routes
 from server.logbook import track_api, track_routes
 from server.openapi_errors import describe_errors
+from server import account as people_account
 from server.people import api as people_api
 from server.people import routes as people_routes
-from server.people.deps import SignInRequired
+from server.people.deps import OwnPasswordRequired, SignInRequired
 from server.progress import api as progress_api
 from server.progress import program_api, program_routes
 from server.progress import routes as progress_routes
-from server.records.refusals import record_refusal
+from server.records.refusals import StrangerTally, record_refusal
+from server.request_bodies import BodyLimit, TextFieldsOnly
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
 from server.security import SecurityHeaders
@@ -37,7 +41,14 @@ from server.write_queue import WriterQueue
 
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or get_settings()
+
+    @asynccontextmanager
+    async def lifespan(app: FastAPI):
+        yield
+        app.state.stranger_tally.write(app.state.sessions)  # what was counted since the last entry
+
     app = FastAPI(
+        lifespan=lifespan,
         title="Flarebook",
         version="0.1.0",
         summary="Practice-autorotation training records for helicopter schools.",
@@ -49,14 +60,21 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.settings = settings
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
+    app.state.sessions.configure(info={"settings": settings})  # services read them with settings_of
+    app.state.stranger_tally = StrangerTally(settings.stranger_audit_seconds)
 
-    app.add_middleware(WriterQueue)  # writing requests take turns: see server/write_queue.py
+    # Writing requests take turns (server/write_queue.py); sign-in checks its password outside.
+    app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
+    app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths)
+    # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
+    app.add_middleware(BodyLimit, default_bytes=settings.max_body_bytes,
+                       larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths])
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
     for module in (people_api, visible_people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
-    for module in (people_routes, logbook_routes):
+    for module in (people_routes, people_account, logbook_routes):
         app.include_router(module.router)
     app.include_router(progress_api.router, prefix="/api/v1")
     app.include_router(training_api.router, prefix="/api/v1")
@@ -122,6 +140,13 @@ def _add_error_handlers(app: FastAPI) -> None:
         message = HTTP_ERROR_WORDS.get(exc.status_code, "That could not be done.")
         return render(request, "error.html", {"message": message, "status": exc.status_code},
                       status_code=exc.status_code, fragment="_error.html")
+
+    @app.exception_handler(OwnPasswordRequired)
+    async def _own_password(request: Request, exc: OwnPasswordRequired):
+        if is_htmx(request):
+            return JSONResponse({"detail": "Choose your own password first."}, status_code=403,
+                                headers={"HX-Redirect": "/account"})
+        return RedirectResponse("/account", status_code=303)
 
     @app.exception_handler(SignInRequired)
     async def _sign_in(request: Request, exc: SignInRequired):

@@ -13,6 +13,7 @@ from server.logbook import track_commands
 from server.people import service as people
 from server.people.models import Person
 from server.records import commands as records_commands
+from server.signed_records import RECORD_CHECKS
 from server.vocabulary import ROLES
 
 
@@ -59,7 +60,16 @@ def cmd_token_new(args) -> str:
         person = people.find_by_email(session, args.email)
         if person is None or not person.active:
             raise FlarebookError(f"No active person signs in as {args.email}.")
-        return people.issue_token(session, person=person, label=args.label)
+        return people.issue_token(session, person=person, label=args.label, days=args.days)
+
+
+def cmd_token_revoke(args) -> str:
+    with transaction(_sessions()) as session:
+        person = people.find_by_email(session, args.email)
+        if person is None:
+            raise FlarebookError(f"Nobody signs in as {args.email}.")
+        count = people.revoke_all_tokens(session, person_id=person.id, audited=True)
+        return f"Revoked {count} API token{'' if count == 1 else 's'} of {person.name} <{person.email}>"
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -84,8 +94,14 @@ def build_parser() -> argparse.ArgumentParser:
     new = token.add_parser("new", help="make a token and print it alone on standard output")
     new.add_argument("email")
     new.add_argument("--label", default="command line")
+    new.add_argument("--days", type=int, default=None,
+                     help="days until it expires (default: the FLAREBOOK_TOKEN_DAYS setting, 90)")
     new.set_defaults(run=cmd_token_new)
-    records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
+    revoke = token.add_parser("revoke", help="revoke every API token of a person at once")
+    revoke.add_argument("email")
+    revoke.set_defaults(run=cmd_token_revoke)
+    # backup, restore, export, audit verify, audit head; with every area's signed-record check
+    records_commands.add_commands(sub, record_checks=RECORD_CHECKS)
     track_commands.add_commands(sub)  # track import
     return parser
 

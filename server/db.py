@@ -96,7 +96,11 @@ def make_engine(url: str) -> Engine:
 
 
 def make_session_factory(engine: Engine) -> sessionmaker[Session]:
-    return sessionmaker(engine, expire_on_commit=False)
+    from server.input_rules import refuse_control_characters  # above this module: it knows the errors
+
+    factory = sessionmaker(engine, expire_on_commit=False)
+    event.listen(factory, "before_flush", refuse_control_characters)
+    return factory
 
 
 @contextmanager

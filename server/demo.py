@@ -108,17 +108,19 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
                                    ("chief", "ines", (20, 7))):
         for week in weeks:
             flown = today - timedelta(weeks=week, days=1)
-            count += _sortie(session, rng, who[instructor], who[key], aircraft[0], sites[0], flown, 1.0, sign=True)
+            # The chief pilot assigns recurrent training: Ines has no enrolment with the chief pilot.
+            count += _sortie(session, rng, who[instructor], who[key], aircraft[0], sites[0], flown, 1.0, sign=True,
+                             assigned_by=who["chief"])
     return f"Loaded {SCHOOL_NAME}: {len(PEOPLE)} people, {count} practice autorotations. Password: {DEMO_PASSWORD}"
 
 
 def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, progress: float, *, sign: bool,
-            with_track: bool = False) -> int:
+            with_track: bool = False, assigned_by=None) -> int:
     """One sortie of 3 to 6 attempts whose quality follows the pilot's progress (0 new, 1 at standard)."""
     when = datetime.combine(flown_on, time(hour=rng.choice((8, 10, 13, 15)), minute=rng.choice((0, 30))), UTC)
     summer = 1 - abs(flown_on.month - 7) / 6
-    sortie = logbook.create_sortie(session, actor=instructor, data=SortieCreate(
-        flown_at=when, aircraft_id=aircraft.id, pilot_id=pilot.id, site_id=site.id,
+    sortie = logbook.create_sortie(session, actor=assigned_by or instructor, data=SortieCreate(
+        flown_at=when, aircraft_id=aircraft.id, pilot_id=pilot.id, site_id=site.id, instructor_id=instructor.id,
         oat_c=round(4 + 24 * summer + rng.uniform(-4, 4)), altimeter_hpa=round(rng.uniform(1002, 1028)),
         wind_dir_deg=rng.choice((70, 90, 110, 250, 270, 290, 180, 350)), wind_kt=rng.randint(3, 16),
         takeoff_weight_lb=rng.randint(1280, 1460), remarks="",

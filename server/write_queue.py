@@ -21,13 +21,16 @@ WRITING_METHODS = {"POST", "PUT", "PATCH", "DELETE"}
 
 
 class WriterQueue:
-    def __init__(self, app: ASGIApp):
+    def __init__(self, app: ASGIApp, skip_paths: frozenset[str] = frozenset()):
         self.app = app
+        # Routes that check a password first (Argon2 takes a while on purpose) and write little: queued,
+        # every guess would hold up everyone's saves; their short write still takes the database's turn.
+        self.skip_paths = skip_paths
         # One queue per event loop: a server has one; test clients may each run their own.
         self.turns: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
     async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
-        if scope["type"] != "http" or scope["method"] not in WRITING_METHODS:
+        if scope["type"] != "http" or scope["method"] not in WRITING_METHODS or scope["path"] in self.skip_paths:
             await self.app(scope, receive, send)
             return
         body = await _whole_body(receive)

@@ -1,11 +1,15 @@
 """Builders for the invented test school; every name and figure is invented for the tests."""
+from contextlib import contextmanager
 from dataclasses import dataclass
 from html.parser import HTMLParser
-from datetime import UTC, datetime
+from datetime import UTC, date, datetime
 
+from sqlalchemy import text
 from sqlalchemy.orm import Session
 
 from server.fleet.models import Aircraft, HelicopterType, Site
+from server.training.models import Enrolment, Program
+from server.logbook import access
 from server.logbook import service as logbook
 from server.logbook.models import Sortie
 from server.logbook.schemas import AttemptFields, SortieCreate
@@ -13,6 +17,7 @@ from server.people import service as people
 from server.people.models import Person
 
 PASSWORD = "test-password-1"
+WORLD_PROGRAM = "Enrolment of the test school (no lessons)"
 
 
 @dataclass
@@ -44,7 +49,7 @@ def build_world(session: Session) -> World:
     site = Site(name="Test Field", elevation_ft=500, landing_dirs_deg=[90, 270])
     session.add_all([aircraft, site])
     session.flush()
-    return World(
+    world = World(
         chief=person("chief", "Chief Tester", ["chief_pilot", "instructor"]),
         instructor=person("instructor", "Ivo Instructor", ["instructor"]),
         other_instructor=person("other", "Olga Otherinstructor", ["instructor"]),
@@ -52,6 +57,18 @@ def build_world(session: Session) -> World:
         other_student=person("student2", "Tess Otherstudent", ["student"]),
         helicopter=helicopter, aircraft=aircraft, site=site,
     )
+    # Who may see whom follows enrolment: each student is enrolled with their own instructor. The
+    # program's level is "recurrent", the level a pilot outside any program is judged at, so the
+    # standards that apply are those of an unenrolled pilot.
+    syllabus = Program(name=WORLD_PROGRAM, level="recurrent")
+    session.add(syllabus)
+    session.flush()
+    session.add_all([Enrolment(program_id=syllabus.id, student_id=world.student.id, instructor_id=world.instructor.id,
+                               started_on=date(2026, 1, 5), active=True),
+                     Enrolment(program_id=syllabus.id, student_id=world.other_student.id,
+                               instructor_id=world.other_instructor.id, started_on=date(2026, 1, 5), active=True)])
+    session.flush()
+    return world
 
 
 def make_sortie(session: Session, world: World, *, instructor: Person | None = None, pilot: Person | None = None,
@@ -62,7 +79,12 @@ def make_sortie(session: Session, world: World, *, instructor: Person | None = N
                         aircraft_id=world.aircraft.id, pilot_id=(pilot or world.student).id, site_id=world.site.id,
                         **({"oat_c": 15, "altimeter_hpa": 1013.25} | conditions))
     actor = session.get(Person, instructor.id)
-    sortie = logbook.create_sortie(session, actor=actor, data=data)
+    # A pilot not enrolled with this instructor: the chief pilot assigns the sortie, as a school would.
+    assigner = actor if access.can_view_pilot(session, viewer=actor, pilot_id=data.pilot_id) \
+        else session.get(Person, world.chief.id)
+    if assigner is not actor:
+        data = data.model_copy(update={"instructor_id": actor.id})
+    sortie = logbook.create_sortie(session, actor=assigner, data=data)
     for _ in range(attempts):
         logbook.add_attempt(session, actor=actor, sortie=sortie, data=AttemptFields(
             maneuver="straight_in", termination="touchdown", descent_kias=65, nr_low_pct=95, nr_high_pct=104,
@@ -105,3 +127,22 @@ def input_values(html: str) -> dict:
     parser = _InputValues()
     parser.feed(html)
     return parser.values
+
+
+@contextmanager
+def audit_table_writable(connection):
+    """Lift the audit table's append-only triggers inside one transaction, as only a test (or someone
+    with the database's own rights) can: on SQLite drop and re-create them, on PostgreSQL run as a
+    replica, for which ordinary triggers do not fire."""
+    if connection.dialect.name == "postgresql":
+        connection.execute(text("SET LOCAL session_replication_role = replica"))
+        yield
+        connection.execute(text("SET LOCAL session_replication_role = origin"))
+        return
+    triggers = connection.execute(text(
+        "SELECT name, sql FROM sqlite_master WHERE type = 'trigger' AND tbl_name = 'audit_events'")).all()
+    for name, _ in triggers:
+        connection.execute(text(f'DROP TRIGGER "{name}"'))
+    yield
+    for _, sql in triggers:
+        connection.execute(text(sql))

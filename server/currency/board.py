@@ -1,6 +1,4 @@
 """The readiness board and each person's own currency: who stands where under which rule."""
-import csv
-import io
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
@@ -9,6 +7,7 @@ from sqlalchemy import select
 from sqlalchemy.orm import Session
 
 from server.compute.currency import STATUS_RANK, format_date
+from server.csv_export import csv_text
 from server.currency import evaluation
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
@@ -153,9 +152,5 @@ def board_page(rows: list[Standing], *, page: int, show_all: bool) -> BoardPage:
 
 
 def board_csv(rows: list[Standing]) -> str:
-    """The board as CSV text; a byte-order mark lets common spreadsheet programs read it as UTF-8."""
-    out = io.StringIO()
-    writer = csv.writer(out)
-    writer.writerow(CSV_HEADER)
-    writer.writerows(row.csv_row() for row in rows)
-    return "\ufeff" + out.getvalue()
+    """The board as CSV text, through the app's one CSV writer (formula cells neutralised, with a BOM)."""
+    return csv_text(CSV_HEADER, (row.csv_row() for row in rows), bom=True)

@@ -1,7 +1,7 @@
 """Calendar feeds of currency due dates (iCalendar, RFC 5545) behind secret, revocable links."""
 from datetime import date, datetime, timedelta
 
-from icalendar import Alarm, Calendar, Event
+from icalendar import Alarm, Calendar, Event, vText
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
@@ -77,7 +77,9 @@ def calendar_bytes(rows: list[board.Standing], *, name: str, made_at: datetime) 
     calendar = Calendar()
     calendar.add("prodid", PRODID)
     calendar.add("version", "2.0")
-    calendar.add("x-wr-calname", name)
+    # X-WR-CALNAME is not an RFC 5545 property, so icalendar would write it raw: as TEXT it is
+    # escaped (RFC 5545 3.3.11), and a name with a comma or a line break stays one valid line.
+    calendar.add("x-wr-calname", vText(name))
     for row in rows:
         if row.current_until is None:
             continue

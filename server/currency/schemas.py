@@ -4,6 +4,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
+from server.input_rules import StrictInput
 from server.people.schemas import Role
 from server.vocabulary import Maneuver, Termination
 
@@ -28,7 +29,7 @@ class RuleFields(BaseModel):
     warn_days: int = Field(default=14, ge=0, le=365)
 
 
-class RuleCreate(RuleFields):
+class RuleCreate(StrictInput, RuleFields):
     model_config = ConfigDict(extra="forbid")
 
     @model_validator(mode="after")
@@ -41,7 +42,7 @@ class RuleCreate(RuleFields):
         return self
 
 
-class RuleUpdate(BaseModel):
+class RuleUpdate(StrictInput):
     """Any subset of the fields; setting one window kind clears the other."""
 
     model_config = ConfigDict(extra="forbid")
@@ -94,7 +95,7 @@ class BoardRead(BaseModel):
     rows: list[BoardRowRead]
 
 
-class FeedCreate(BaseModel):
+class FeedCreate(StrictInput):
     model_config = ConfigDict(extra="forbid")
     person_id: int | None = Field(default=None, description="whose due dates; null for the whole school")
 

@@ -1,6 +1,8 @@
 """Shapes of helicopter types, aircraft and sites in the API."""
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
+from server.input_rules import StrictInput
+
 Point = tuple[float, float]
 
 
@@ -36,11 +38,11 @@ class TypeBase(BaseModel):
         return polygons
 
 
-class TypeCreate(TypeBase):
+class TypeCreate(StrictInput, TypeBase):
     model_config = ConfigDict(extra="forbid")
 
 
-class TypeUpdate(BaseModel):
+class TypeUpdate(StrictInput):
     """A partial change to a helicopter type: only the fields sent change; the result is checked in full."""
 
     model_config = ConfigDict(extra="forbid")
@@ -62,7 +64,7 @@ class TypeRead(TypeBase):
     id: int
 
 
-class AircraftCreate(BaseModel):
+class AircraftCreate(StrictInput):
     model_config = ConfigDict(extra="forbid")
     registration: str = Field(min_length=2, max_length=20)
     type_id: int
@@ -74,7 +76,7 @@ class AircraftRead(AircraftCreate):
     active: bool
 
 
-class SiteCreate(BaseModel):
+class SiteCreate(StrictInput):
     model_config = ConfigDict(extra="forbid")
     name: str = Field(min_length=1, max_length=120)
     elevation_ft: float = Field(ge=-1500, le=20000)

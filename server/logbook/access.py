@@ -1,20 +1,22 @@
 """Who may see whom: students see themselves, instructors the pilots they teach, chief pilots everyone.
 
-It lives beside the sorties because "the pilots an instructor teaches" are read from enrolments and flown sorties.
+"The pilots an instructor teaches" follow the school's assignments: an active enrolment with that
+instructor as the usual instructor. A sortie flown together does not count (an instructor could
+otherwise give themselves any pilot's records with an empty sortie); the sortie itself stays
+visible to its assigned instructor (logbook.service.may_view), which is how a chief pilot's
+assignment of one sortie works.
 """
-from sqlalchemy import or_, select
+from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.logbook.models import Sortie
-from server.people.models import Person, PersonRole
+from server.people.models import Person
 from server.training.models import Enrolment
 
 
 def student_ids_of(session: Session, instructor_id: int) -> set[int]:
-    """Pilots an instructor teaches: enrolled with them, or flown with them."""
-    enrolled = session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id))
-    flown = session.scalars(select(Sortie.pilot_id).where(Sortie.instructor_id == instructor_id).distinct())
-    return set(enrolled) | set(flown)
+    """Pilots an instructor teaches: actively enrolled with them as their usual instructor."""
+    return set(session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id,
+                                                                  Enrolment.active.is_(True))))
 
 
 def can_view_pilot(session: Session, *, viewer: Person, pilot_id: int) -> bool:
@@ -32,8 +34,5 @@ def visible_people(session: Session, *, viewer: Person) -> list[Person]:
         ids = {viewer.id}
         if viewer.has_role("instructor"):
             ids |= student_ids_of(session, viewer.id)
-            # Instructors also need to pick any student when starting a sortie.
-            query = query.where(or_(Person.id.in_(ids), Person.role_rows.any(PersonRole.role == "student")))
-        else:
-            query = query.where(Person.id.in_(ids))
+        query = query.where(Person.id.in_(ids))
     return list(session.scalars(query))

@@ -141,7 +141,9 @@ def _local_flown_at(db, values: dict) -> dict:
     """The form's local date and time, in the school's time zone."""
     if values.get("flown_at"):
         try:
-            values["flown_at"] = datetime.fromisoformat(values["flown_at"]).replace(tzinfo=_timezone(db))
+            typed = datetime.fromisoformat(values["flown_at"])
+            # A time typed with an offset keeps it; a bare local time is the school's.
+            values["flown_at"] = typed if typed.tzinfo else typed.replace(tzinfo=_timezone(db))
         except ValueError:
             values["flown_at"] = "not a date"
     return values

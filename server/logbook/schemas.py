@@ -3,10 +3,12 @@
 The same models validate the JSON API and the sortie sheet's forms, so both refuse the same input
 with the same words.
 """
-from datetime import datetime
+from datetime import UTC, datetime
 from typing import Literal
 
-from pydantic import AwareDatetime, BaseModel, ConfigDict, Field, model_validator
+from pydantic import AwareDatetime, BaseModel, ConfigDict, Field, field_validator, model_validator
+
+from server.input_rules import StrictInput
 
 from server.vocabulary import Maneuver, Termination
 
@@ -15,7 +17,7 @@ Grade = Literal["satisfactory", "unsatisfactory"]
 KG_PER_LB = 0.45359237  # exact, by definition of the international pound
 
 
-class ConditionsFields(BaseModel):
+class ConditionsFields(StrictInput):
     oat_c: float | None = Field(default=None, ge=-60, le=60, description="outside air temperature, °C")
     altimeter_hpa: float | None = Field(default=None, ge=850, le=1100)
     # 25.11 to 32.48 inHg stays inside 850 to 1100 hPa once converted (25.1 inHg is 849.98 hPa).
@@ -46,6 +48,17 @@ class SortieFields(ConditionsFields):
         return self
 
 
+def _representable(moment: datetime | None) -> datetime | None:
+    """A moment that exists in UTC: 9999-12-31T23:59:59-12:00 is past the last day Python can hold."""
+    if moment is None:
+        return None
+    try:
+        moment.astimezone(UTC)
+    except (OverflowError, ValueError):
+        raise ValueError("is not a date and time Flarebook can record") from None
+    return moment
+
+
 class SortieCreate(SortieFields):
     model_config = ConfigDict(extra="forbid")
     flown_at: AwareDatetime
@@ -53,6 +66,8 @@ class SortieCreate(SortieFields):
     pilot_id: int
     site_id: int
     instructor_id: int | None = None  # defaults to the instructor creating it
+
+    _flown_at_exists = field_validator("flown_at")(_representable)
 
 
 class SortieUpdate(SortieFields):
@@ -64,8 +79,10 @@ class SortieUpdate(SortieFields):
     aircraft_id: int | None = None
     site_id: int | None = None
 
+    _flown_at_exists = field_validator("flown_at")(_representable)
 
-class AttemptFields(BaseModel):
+
+class AttemptFields(StrictInput):
     model_config = ConfigDict(extra="forbid")
     maneuver: Maneuver
     termination: Termination
@@ -90,7 +107,7 @@ class AttemptFields(BaseModel):
         return self
 
 
-class AttemptUpdate(BaseModel):
+class AttemptUpdate(StrictInput):
     """A partial change to an attempt: only the fields sent change; the result is checked in full."""
 
     model_config = ConfigDict(extra="forbid")
@@ -181,12 +198,12 @@ class SortieRead(BaseModel):
     signatures: list[SignatureRead]
 
 
-class SignRequest(BaseModel):
+class SignRequest(StrictInput):
     model_config = ConfigDict(extra="forbid")
     password: str = Field(min_length=1, max_length=1000)
 
 
-class AmendRequest(BaseModel):
+class AmendRequest(StrictInput):
     model_config = ConfigDict(extra="forbid")
     reason: str = Field(min_length=3, max_length=2000)
 

@@ -1,20 +1,30 @@
 """Sorties and attempts: create, edit while a draft, sign, acknowledge, amend."""
 import hashlib
+from datetime import UTC, datetime, timedelta
 
+from pydantic import ValidationError
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
 from server.compute.atmosphere import inhg_to_hpa
+from server.config import settings_of
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.fleet.models import Aircraft, Site
 from server.logbook import access, derive
 from server.logbook.models import Attempt, MEANINGS, Signature, Sortie
-from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
+from server.logbook.schemas import (
+    KG_PER_LB,
+    AttemptFields,
+    ConditionsFields,
+    ConditionsRequest,
+    SortieCreate,
+    SortieUpdate,
+)
 from server.people import service as people
 from server.people.models import Person
-from server.people.security import verify_password
 from server.records import audit
 from server.training.service import standard_for
+from server.types import utcnow
 
 ATTEMPT_FIELDS = tuple(AttemptFields.model_fields)
 SORTIE_RECORD_FIELDS = (
@@ -22,6 +32,10 @@ SORTIE_RECORD_FIELDS = (
     "pilot_id", "site_id", "wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa", "metar",
     "takeoff_weight_lb", "remarks", "pressure_altitude_ft", "density_altitude_ft",
 )
+METAR_WORDS = {"altimeter_hpa": "an altimeter setting (hPa) of", "oat_c": "a temperature (°C) of",
+               "wind_kt": "a wind speed (kt) of", "gust_kt": "a gust speed (kt) of", "wind_dir_deg": "a wind direction of"}
+# A clock set a few hours ahead, or a flight logged in another time zone, is not an error; a day is.
+FUTURE_ALLOWANCE = timedelta(days=1)
 ATTEMPT_RECORD_FIELDS = ATTEMPT_FIELDS + (
     "sequence", "score", "flags", "standard_id", "flare_band_low_ft", "flare_band_high_ft",
 )
@@ -132,18 +146,40 @@ def _fill_from_metar(sortie: Sortie) -> None:
     result = derive.conditions(ConditionsRequest(metar=sortie.metar))
     if result.message:
         raise Invalid(result.message)
+    carried = {name: getattr(result, name) for name in result.filled_from_metar}
+    try:  # the METAR's figures meet the same ranges as typed ones (Q0000, A9999, M99/M99 do not)
+        ConditionsFields.model_validate(carried)
+    except ValidationError as error:
+        raise Invalid("The METAR gives " + "; ".join(
+            f"{METAR_WORDS.get(item['loc'][0], item['loc'][0])} {carried[item['loc'][0]]:g}, which "
+            f"{item['msg'].lower().replace('input should be', 'should be')}"
+            for item in error.errors() if item["loc"]) + ". Check the report, or enter the conditions by hand.") from None
     for name in ("wind_dir_deg", "wind_kt", "gust_kt", "oat_c", "altimeter_hpa"):
         if getattr(sortie, name) is None and name in result.filled_from_metar:
             setattr(sortie, name, getattr(result, name))
 
 
+def check_flown_at(session: Session, flown_at: datetime) -> None:
+    """A flight not before the school's records begin, nor more than a day ahead: else a typing error."""
+    begins = settings_of(session).records_begin
+    if flown_at.astimezone(UTC).date() < begins:
+        raise Invalid(f"flown_at is before {begins.isoformat()}, when this school's records begin; check the year.")
+    if flown_at > utcnow() + FUTURE_ALLOWANCE:
+        raise Invalid("flown_at is more than a day in the future; check the date.")
+
+
 def create_sortie(session: Session, *, actor: Person, data: SortieCreate) -> Sortie:
     """Start a sortie; the instructor is the caller unless a chief pilot names another."""
+    check_flown_at(session, data.flown_at)
     if not actor.has_role("instructor", "chief_pilot"):
         raise Forbidden("Only instructors and chief pilots start sorties.")
     instructor_id = data.instructor_id if data.instructor_id is not None else actor.id
     if instructor_id != actor.id and not actor.has_role("chief_pilot"):
         raise Forbidden("An instructor starts sorties in their own name.")
+    if not actor.has_role("chief_pilot") and not access.can_view_pilot(session, viewer=actor, pilot_id=data.pilot_id):
+        # Else an empty sortie would be a way in to any pilot's records; a chief pilot assigns others.
+        raise Forbidden("You can start a sortie only for a pilot enrolled with you; a chief pilot can assign "
+                        "you another.")
     instructor = session.get(Person, instructor_id)
     if instructor is None or not instructor.has_role("instructor"):
         raise Invalid("instructor_id does not name an instructor.")
@@ -176,6 +212,7 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
     before = sortie_record(sortie)
     fields_set = data.model_fields_set
     if "flown_at" in fields_set and data.flown_at is not None:
+        check_flown_at(session, data.flown_at)
         sortie.flown_at = data.flown_at
     if "pilot_id" in fields_set and data.pilot_id is not None and data.pilot_id != sortie.pilot_id:
         pilot = session.get(Person, data.pilot_id)
@@ -296,10 +333,12 @@ def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: st
                      reason="not the assigned instructor")
         raise Forbidden("Only the sortie's assigned instructor can sign it.")
     _require_draft(sortie)
-    if not verify_password(actor.password_hash, password):
+    try:
+        people.check_signing_password(session, person=actor, password=password)
+    except Invalid as refusal:
         audit.append(session, actor_id=actor.id, action="sign_refused", entity="sortie", entity_id=sortie.id,
                      reason="wrong password")
-        raise Invalid("That password is not right; the sortie stays unsigned.", keep_record=True)
+        raise Invalid(refusal.message + " The sortie stays unsigned.", keep_record=True) from None
     return record_instructor_signature(session, actor=actor, sortie=sortie)
 
 
@@ -314,8 +353,10 @@ def record_instructor_signature(session: Session, *, actor: Person, sortie: Sort
                           statement=MEANINGS["instructor_certifies"], content_sha256=content_hash(sortie))
     session.add(signature)
     session.flush()
+    # The record as signed goes into the chain too, so a later check can say which field changed.
     audit.append(session, actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
-                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning})
+                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning,
+                        "record": sortie_record(sortie)})
     return signature
 
 
@@ -323,6 +364,7 @@ def acknowledge_sortie(session: Session, *, actor: Person, sortie: Sortie) -> Si
     """The pilot acknowledges having read a signed sortie."""
     if sortie.pilot_id != actor.id:
         raise Forbidden("Only the pilot of this sortie can acknowledge it.")
+    people.require_own_password(actor)
     if sortie.state != "signed" or superseded_by(session, sortie) is not None:
         raise Conflict("Only the latest signed version of a sortie can be acknowledged.")
     if any(s.meaning == "pilot_acknowledges" and s.signer_id == actor.id for s in signatures(session, sortie)):

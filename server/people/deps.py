@@ -14,6 +14,19 @@ class SignInRequired(Exception):
     """A page was asked for without a live session."""
 
 
+class OwnPasswordRequired(Exception):
+    """The person signed in with a password someone else set: they choose their own first."""
+
+
+# What a person whose password was reset may still reach: choosing their own, and leaving.
+OWN_PASSWORD_PATHS = frozenset({"/account", "/account/password", "/signout", "/api/v1/me", "/api/v1/me/password"})
+RESET_REFUSAL = "Your password was reset: choose your own with POST /api/v1/me/password first."
+
+
+def _needs_own_password(request: Request, person: Person) -> bool:
+    return person.password_must_change and request.url.path not in OWN_PASSWORD_PATHS
+
+
 def browser_session(request: Request, db: DbSession) -> UserSession | None:
     value = request.cookies.get(cookie_name(request))
     if not value:
@@ -38,6 +51,8 @@ async def page_user(request: Request, db: DbSession, user_session: BrowserSessio
     request.state.person_id = person.id
     await check_csrf(request, user_session.csrf_token)
     request.state.user_session = user_session
+    if _needs_own_password(request, person):
+        raise OwnPasswordRequired()
     return person
 
 
@@ -49,6 +64,8 @@ async def api_user(request: Request, db: DbSession, user_session: BrowserSession
         if person is None:
             raise Unauthorized("That API token is not valid.")
         request.state.person_id = person.id  # names the actor if an access is refused
+        if _needs_own_password(request, person):
+            raise Forbidden(RESET_REFUSAL)
         return person
     if user_session is None or user_session.person_id is None:
         raise Unauthorized("Sign in, or send Authorization: Bearer <token>.")
@@ -57,6 +74,9 @@ async def api_user(request: Request, db: DbSession, user_session: BrowserSession
         raise Unauthorized("Sign in, or send Authorization: Bearer <token>.")
     request.state.person_id = person.id
     await check_csrf(request, user_session.csrf_token)
+    request.state.user_session = user_session
+    if _needs_own_password(request, person):
+        raise Forbidden(RESET_REFUSAL)
     return person
 
 

@@ -1,10 +1,12 @@
 """Pages: sign-in and sign-out."""
+import secrets
 from typing import Annotated
 
-from fastapi import APIRouter, Form, Request
+from fastapi import APIRouter, Depends, Form, Request
 from fastapi.responses import RedirectResponse
+from starlette.concurrency import run_in_threadpool
 
-from server.deps import DbSession, check_csrf, cookie_name, secure_cookies
+from server.deps import CSRF_FIELD, CSRF_HEADER, DbSession, check_csrf, cookie_name, secure_cookies
 from server.errors import Unauthorized
 from server.people import service as people
 from server.people.deps import BrowserSession, PageUser
@@ -43,15 +45,37 @@ def signin_page(request: Request, db: DbSession, user_session: BrowserSession):
     return response
 
 
+async def checked_sign_in(request: Request, email: Annotated[str, Form(max_length=254)],
+                          password: Annotated[str, Form(max_length=1000)]) -> people.SignInCheck | None:
+    """The password check, in a read-only session of its own before the request's writing transaction
+    begins: the slow hash never holds the write lock (and /signin skips the writer queue). None when
+    the form does not carry its pre-sign-in session's CSRF token; the route then refuses it."""
+    client = request.client.host if request.client else ""
+    cookie = request.cookies.get(cookie_name(request))
+    submitted = str((await request.form()).get(CSRF_FIELD, "")) or request.headers.get(CSRF_HEADER, "")
+
+    def check():
+        with request.app.state.sessions() as session:
+            row = people.load_session(session, cookie_value=cookie, settings=request.app.state.settings) \
+                if cookie else None
+            if row is None or not submitted or not secrets.compare_digest(submitted.encode(), row.csrf_token.encode()):
+                return None
+            return people.check_sign_in(session, email=email, password=password, client=client)
+
+    return await run_in_threadpool(check)
+
+
+CheckedSignIn = Annotated[people.SignInCheck | None, Depends(checked_sign_in)]
+
+
 @router.post("/signin")
-async def signin(request: Request, db: DbSession, user_session: BrowserSession,
-                 email: Annotated[str, Form(max_length=254)], password: Annotated[str, Form(max_length=1000)]):
+async def signin(request: Request, check: CheckedSignIn, db: DbSession, user_session: BrowserSession,
+                 email: Annotated[str, Form(max_length=254)]):
     if user_session is None:
         return RedirectResponse("/signin", status_code=303)
     await check_csrf(request, user_session.csrf_token)
-    client = request.client.host if request.client else ""
     try:
-        person = people.authenticate(db, email=email, password=password, client=client)
+        person = people.record_sign_in(db, check=check)
     except Unauthorized as refusal:
         school = people.school(db)
         return render(request, "people/signin.html", {
@@ -60,7 +84,8 @@ async def signin(request: Request, db: DbSession, user_session: BrowserSession,
         }, status_code=401)
     people.end_session(db, row=user_session)
     cookie_value, _ = people.start_session(db, person=person)
-    response = RedirectResponse("/", status_code=303)
+    # A password someone else set lets its owner in only to choose their own.
+    response = RedirectResponse("/account" if person.password_must_change else "/", status_code=303)
     _set_cookie(request, response, cookie_value)
     return response
 

@@ -11,7 +11,7 @@ from server.compute.proficiency import AttemptPoint
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.logbook import access
 from server.people.models import Person
-from server.people.security import verify_password
+from server.people import service as people
 from server.progress.service import read_points
 from server.records import audit
 from server.training.models import (
@@ -222,10 +222,12 @@ def sign_stage_check(session: Session, *, actor: Person, enrolment: Enrolment, s
     stage = next((s for s in program.stages if s.id == stage_id), None)
     if stage is None:
         raise NotFound("That stage is not part of this student's program.")
-    if not verify_password(actor.password_hash, password):
+    try:  # the checker's own password, throttled with the sign-ins; a reset one is refused
+        people.check_signing_password(session, person=actor, password=password)
+    except Invalid as refusal:
         audit.append(session, actor_id=actor.id, action="sign_refused", entity="enrolment", entity_id=enrolment.id,
                      reason="wrong password")
-        raise Invalid("That password is not right; the stage check was not signed.", keep_record=True)
+        raise Invalid(refusal.message + " The stage check was not signed.", keep_record=True) from None
     if passed:
         progress = program_progress(session, enrolment=enrolment)
         stage_progress = next(s for s in progress.stages if s.stage.id == stage_id)

@@ -1,14 +1,19 @@
 """Consistent copies of a live SQLite database (the online backup API), restore, and checks."""
 import sqlite3
+from collections.abc import Iterable
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 
 from sqlalchemy.engine import make_url
+from sqlalchemy.exc import SQLAlchemyError
 
 from server.db import make_engine, make_session_factory
 from server.errors import FlarebookError
-from server.records import audit
+from server.records import audit, proof
+from server.records.export import SKIPPED_TABLES
+from server.records.models import AuditEvent
+from server.records.proof import RecordCheck
 
 PG_DUMP_HELP = (
     "For PostgreSQL use its own tools: `pg_dump --format=custom --file=FILE DBNAME` takes a consistent "
@@ -56,13 +61,40 @@ def _copy(source: Path, target: Path) -> None:
         src.close()
 
 
-def check_copy(path: Path) -> CopyReport:
-    """PRAGMA integrity_check and the audit chain of a database file; raises with the first problem."""
+# Tables that hold no records: what the export leaves out (sign-in state, secrets), and Alembic's own.
+NOT_RECORDS = frozenset(SKIPPED_TABLES | {"alembic_version"})
+
+
+def _tables_with_rows(connection: sqlite3.Connection) -> list[str]:
+    names = [r[0] for r in connection.execute(
+        "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")]
+    return [name for name in names if name not in NOT_RECORDS and connection.execute(
+        f"SELECT 1 FROM {_identifier(name)} LIMIT 1").fetchone() is not None]  # nosec B608: quoted identifier
+
+
+def _identifier(name: str) -> str:
+    """A table name from the file itself, quoted as an SQL identifier (a hostile file may name one oddly)."""
+    return '"' + name.replace('"', '""') + '"'
+
+
+
+def _look_alike(connection: sqlite3.Connection) -> str | None:
+    """What is wrong with an audit_events table that is not Flarebook's, or None when it is."""
+    columns = {r[1] for r in connection.execute("PRAGMA table_info(audit_events)")}
+    missing = sorted({c.name for c in AuditEvent.__table__.columns} - columns)
+    return f"its audit_events table is not Flarebook's (no column {', '.join(missing)})" if missing else None
+
+
+def check_copy(path: Path, record_checks: Iterable[RecordCheck] = ()) -> CopyReport:
+    """PRAGMA integrity_check, the audit chain and every signed record of a database file; raises with
+    the first problem, in one line."""
     connection = _connect(path)
     try:
         rows = [r[0] for r in connection.execute("PRAGMA integrity_check")]
         has_chain = connection.execute(
             "SELECT 1 FROM sqlite_master WHERE type='table' AND name='audit_events'").fetchone() is not None
+        look_alike = _look_alike(connection) if has_chain and rows == ["ok"] else None
+        with_rows = _tables_with_rows(connection) if rows == ["ok"] else []
     except sqlite3.DatabaseError as error:
         raise FlarebookError(f"{path} is not a SQLite database ({error}).") from None
     finally:
@@ -71,18 +103,32 @@ def check_copy(path: Path) -> CopyReport:
         raise FlarebookError(f"{path} fails PRAGMA integrity_check: {'; '.join(rows[:3])}")
     if not has_chain:
         raise FlarebookError(f"{path} is not a Flarebook database (it has no audit chain).")
+    if look_alike:
+        raise FlarebookError(f"{path} is not a Flarebook database: {look_alike}.")
     engine = make_engine(f"sqlite:///{path}")
     try:
         with make_session_factory(engine)() as session:
             chain = audit.verify(session)
+            signed = proof.check_signed(session, record_checks) if chain.problem is None else []
+    except SQLAlchemyError as error:
+        reason = str(getattr(error, "orig", error)).splitlines()[0]
+        raise FlarebookError(f"{path} cannot be read as a Flarebook database ({reason}).") from None
     finally:
         engine.dispose()
     if chain.problem is not None:
         raise FlarebookError(f"{path}: the audit chain is broken at {chain.problem}")
+    records = [name for name in with_rows if name != "audit_events"]
+    if chain.entries == 0 and records:
+        raise FlarebookError(f"{path} holds records ({', '.join(records[:4])}) but no audit chain for them: "
+                             "a backup without its chain cannot be proven, so it is refused.")
+    if signed:
+        more = f" (and {len(signed) - 1} more)" if len(signed) > 1 else ""
+        raise FlarebookError(f"{path}: a signed record does not hold: {signed[0]}{more}")
     return CopyReport(path=path, integrity="ok", chain=chain)
 
 
-def backup(database_url: str, target: Path, *, force: bool = False) -> CopyReport:
+def backup(database_url: str, target: Path, *, force: bool = False,
+           record_checks: Iterable[RecordCheck] = ()) -> CopyReport:
     """Copy the live database to `target`, check the copy, then move it into place."""
     source = sqlite_path(database_url)
     if not source.exists():
@@ -94,7 +140,7 @@ def backup(database_url: str, target: Path, *, force: bool = False) -> CopyRepor
     partial.unlink(missing_ok=True)
     try:
         _copy(source, partial)
-        report = check_copy(partial)
+        report = check_copy(partial, record_checks)
         partial.replace(target)
     finally:
         partial.unlink(missing_ok=True)
@@ -102,23 +148,26 @@ def backup(database_url: str, target: Path, *, force: bool = False) -> CopyRepor
 
 
 def _holds_records(path: Path) -> bool:
+    """Whether any table holds a row (sign-in state aside): then a restore must not replace it unasked."""
     if not path.exists() or path.stat().st_size == 0:
         return False
     connection = _connect(path)
     try:
-        tables = {r[0] for r in connection.execute("SELECT name FROM sqlite_master WHERE type='table'")}
-        return "audit_events" in tables and connection.execute("SELECT 1 FROM audit_events LIMIT 1").fetchone() is not None
+        return bool(_tables_with_rows(connection))
+    except sqlite3.DatabaseError:
+        return True  # something is there that we cannot read: keep it unless told otherwise
     finally:
         connection.close()
 
 
-def restore(database_url: str, source: Path, *, force: bool = False) -> tuple[CopyReport, Path | None]:
+def restore(database_url: str, source: Path, *, force: bool = False,
+            record_checks: Iterable[RecordCheck] = ()) -> tuple[CopyReport, Path | None]:
     """Bring a checked backup back as the database; a database with records is kept aside first."""
     target = sqlite_path(database_url)
     source = Path(source)
     if not source.exists():
         raise FlarebookError(f"there is no backup at {source}.")
-    check_copy(source)
+    check_copy(source, record_checks)
     kept = None
     if _holds_records(target):
         if not force:
@@ -129,4 +178,4 @@ def restore(database_url: str, source: Path, *, force: bool = False) -> tuple[Co
         _copy(target, kept)
     target.parent.mkdir(parents=True, exist_ok=True)
     _copy(source, target)
-    return check_copy(target), kept
+    return check_copy(target, record_checks), kept

@@ -4,14 +4,13 @@ Counted set-wise in SQL. An attempt's flags are a JSON list of {code, message}; 
 JSON table function (SQLite json_each, PostgreSQL json_array_elements) turns the list into rows, so
 no attempt is read into Python to be counted.
 """
-import csv
-import io
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
 
 from sqlalchemy import Integer, and_, case, cast, func, literal_column, select, true
 from sqlalchemy.orm import Session, selectinload
 
+from server.csv_export import csv_text
 from server.errors import Invalid
 from server.fleet.models import Aircraft, Site
 from server.logbook.counted import counted_sorties_clause
@@ -260,28 +259,18 @@ def flagged_attempts(session: Session, *, by: str | None = None, key: str | None
 
 # ---- CSV ------------------------------------------------------------------------------------
 
-def _cell(value) -> str:
-    """Text that a spreadsheet would run as a formula is quoted (OWASP: CSV injection)."""
-    text = "" if value is None else str(value)
-    if isinstance(value, str) and text[:1] in ("=", "+", "-", "@", "\t", "\r"):
-        return "'" + text
-    return text
-
-
 def digest_csv(result: Digest) -> str:
     """The digest as shown: one line per group of each dimension, counts and rates per 100 attempts."""
-    out = io.StringIO()
-    writer = csv.writer(out, lineterminator="\r\n")
     header = ["dimension", "group", "date_from", "date_to", "attempts"]
     for code in (*FLAG_CODES, ANY_FLAG):
         header += [f"{code}_count", f"{code}_per_100"]
-    writer.writerow(header)
+    lines = []
     tables = [("all", [result.total])] + [(name, rows) for name, rows in result.by.items()]
     for name, rows in tables:
         for row in rows:
-            line = [name, _cell(row.label), result.date_from.isoformat(), result.date_to.isoformat(), row.attempts]
+            line = [name, row.label, result.date_from.isoformat(), result.date_to.isoformat(), row.attempts]
             for code in (*FLAG_CODES, ANY_FLAG):
                 rate = row.per_100(code)
                 line += [row.counts.get(code, 0), "" if rate is None else f"{rate:.1f}"]
-            writer.writerow(line)
-    return out.getvalue()
+            lines.append(line)
+    return csv_text(header, lines)

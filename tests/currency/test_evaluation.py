@@ -113,7 +113,7 @@ def test_day_window_boundaries_on_stored_data(db, world, as_of, status):
 @pytest.mark.parametrize(("flown", "months", "last_day"), [
     # Worked by hand: the window ends on the last day of the month `months` months after the flight's month.
     (date(2025, 8, 31), 6, date(2026, 2, 28)),   # month end into a short February
-    (date(2027, 8, 15), 6, date(2028, 2, 29)),   # into a leap-year February
+    (date(2023, 8, 15), 6, date(2024, 2, 29)),   # into a leap-year February (a past one: sorties cannot be dated ahead)
     (date(2024, 2, 29), 12, date(2025, 2, 28)),  # from 29 February into a common year
     (date(2025, 11, 10), 2, date(2026, 1, 31)),  # across the year end
 ])

@@ -8,6 +8,7 @@ import threading
 from server.cli import main
 from server.db import make_engine, make_session_factory
 from server.records import audit
+from tests.records.conftest import drop_audit_guards
 from tests.support import make_sortie
 
 
@@ -102,6 +103,7 @@ def test_a_damaged_backup_is_refused_with_a_reason(file_school, tmp_path, use_da
     tampered = tmp_path / "tampered.sqlite3"
     shutil.copy(good, tampered)
     with sqlite3.connect(tampered) as connection:
+        drop_audit_guards(connection)
         connection.execute("UPDATE audit_events SET reason = 'edited' WHERE seq = 3")
     target = tmp_path / "new" / "school.sqlite3"
     use_database(f"sqlite:///{target}")

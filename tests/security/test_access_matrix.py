@@ -13,6 +13,7 @@ from datetime import UTC, datetime
 import pytest
 from fastapi.routing import iter_route_contexts
 from fastapi.testclient import TestClient
+from sqlalchemy import select
 
 from server.app import create_app
 from server.config import Settings
@@ -20,7 +21,7 @@ from server.logbook import service as logbook
 from server.logbook.models import Track
 from server.logbook.schemas import AttemptFields
 from server.people import service as people
-from server.people.models import Person
+from server.people.models import ApiToken, Person
 from tests.conftest import sign_in
 from tests.support import make_sortie
 
@@ -83,6 +84,15 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("PATCH", "/api/v1/people/{person_id}"): CHANGE_API,
     ("POST", "/signout"): CHANGE_PAGE,
     ("GET", "/"): page(),
+    ("POST", "/api/v1/me/password"): CHANGE_API,
+    ("GET", "/api/v1/me/tokens"): api(),
+    ("DELETE", "/api/v1/me/tokens/{token_id}"): CHANGE_API,
+    ("GET", "/account"): page(),
+    ("POST", "/account/password"): CHANGE_PAGE,
+    ("POST", "/account/tokens/{token_id}/revoke"): CHANGE_PAGE,
+    ("POST", "/account/calendar-links/{feed_id}/revoke"): CHANGE_PAGE,
+    ("GET", "/setup/people/{person_id}/reset-password"): page(CHIEF_ADMIN),
+    ("POST", "/setup/people/{person_id}/reset-password"): CHANGE_PAGE,
 
     # Fleet and setup.
     ("GET", "/api/v1/types"): api(),
@@ -279,7 +289,9 @@ def school(app, db, world):
     rule = made(chief.post("/api/v1/rules", json={"name": "Matrix rule", "window_days": 90, "min_count": 1}))
     feed = made(chief.post("/api/v1/calendar-feeds", json={"person_id": world.student.id}))
     secret = re.search(r"/calendar/([^/]+)\.ics", feed["url"]).group(1)
-    common = {"type_id": world.helicopter.id, "program_id": program["id"], "lesson_id": lesson_id, "index": 1,
+    token_id = db.scalars(select(ApiToken.id).where(ApiToken.person_id == world.chief.id)).first()
+    common = {"token_id": token_id, "type_id": world.helicopter.id, "program_id": program["id"],
+              "lesson_id": lesson_id, "index": 1,
               "standard_id": standard["id"], "rule_id": rule["id"], "feed_id": feed["id"], "secret": secret}
     return {
         "own": common | {"person_id": world.student.id, "pilot_id": world.student.id, "sortie_id": own.id,
