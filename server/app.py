@@ -23,6 +23,8 @@ from server.progress import api as progress_api
 from server.progress import routes as progress_routes
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
+from server.standardisation import api as standardisation_api
+from server.standardisation import routes as standardisation_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
 from server.records import routes as records_routes
@@ -69,6 +71,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)
+    app.include_router(standardisation_api.router, prefix="/api/v1")
+    app.include_router(standardisation_routes.router)
     _add_error_handlers(app)
     describe_errors(app)
     refuse_out_of_range(app)
