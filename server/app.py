@@ -24,6 +24,8 @@ from server.progress import routes as progress_routes
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
 from server.standardisation import api as standardisation_api
+from server.imports import api as imports_api
+from server.imports import routes as imports_routes
 from server.standardisation import routes as standardisation_routes
 from server.training import api as training_api
 from server.training import routes as training_routes
@@ -73,6 +75,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(currency_routes.router)
     app.include_router(standardisation_api.router, prefix="/api/v1")
     app.include_router(standardisation_routes.router)
+    app.include_router(imports_api.router, prefix="/api/v1")
+    app.include_router(imports_routes.router)
     _add_error_handlers(app)
     describe_errors(app)
     refuse_out_of_range(app)

@@ -7,6 +7,7 @@ from sqlalchemy import select
 from server.config import get_settings
 from server.db import make_engine, make_session_factory, transaction
 from server.errors import FlarebookError
+from server.imports import commands as import_commands
 from server.migrate import upgrade
 from server.people import service as people
 from server.people.models import ROLES, Person
@@ -83,6 +84,7 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("--label", default="command line")
     new.set_defaults(run=cmd_token_new)
     records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
+    import_commands.add_commands(sub)  # import KIND FILE
     return parser
 
 

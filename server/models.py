@@ -2,6 +2,7 @@
 from server.currency.models import CalendarFeed, CurrencyRule
 from server.db import Base
 from server.fleet.models import Aircraft, HelicopterType, School, Site
+from server.imports.models import ImportBatch, ImportedRecord
 from server.logbook.models import Attempt, Sortie
 from server.people.models import ApiToken, Person, PersonRole, SignInFailure, UserSession
 from server.records.models import AuditEvent, IdempotencyKey, Signature
@@ -18,7 +19,7 @@ from server.training.models import (
 
 __all__ = [
     "Aircraft", "ApiToken", "Attempt", "AuditEvent", "Base", "CalendarFeed", "CurrencyRule",
-    "Enrolment", "HelicopterType", "IdempotencyKey", "Lesson", "LessonCompletion",
+    "Enrolment", "HelicopterType", "IdempotencyKey", "ImportBatch", "ImportedRecord", "Lesson", "LessonCompletion",
     "LessonRequirement", "Person", "PersonRole", "Program", "School", "SignInFailure", "Signature",
     "Site", "Sortie", "Stage", "StageCheck", "Standard", "UserSession",
 ]
