@@ -48,15 +48,15 @@ def _mapping_from_form(form, kind: str, header: list[str], file_sha256: str) -> 
 @router.post("/setup/imports", name="import_check")
 async def import_step(request: Request, db: DbSession, person: SetupUser):
     """One step: check the file with the mapping shown (a dry run), or import it."""
-    form = await request.form()
-    kind = str(form.get("kind", ""))
-    context = _page_context(db, person) | {"kind": kind}
-    try:
-        # Reading and checking a large file takes a while: off the event loop.
-        outcome = await run_in_threadpool(_run_step, db, person, form)
-    except (Invalid, Conflict) as error:
-        context["problem"] = error.message
-        return render(request, "imports/imports.html", context, status_code=422, fragment="imports/_step.html")
+    async with request.form() as form:  # closes the uploaded file's spool when done
+        kind = str(form.get("kind", ""))
+        context = _page_context(db, person) | {"kind": kind}
+        try:
+            # Reading and checking a large file takes a while: off the event loop.
+            outcome = await run_in_threadpool(_run_step, db, person, form)
+        except (Invalid, Conflict) as error:
+            context["problem"] = error.message
+            return render(request, "imports/imports.html", context, status_code=422, fragment="imports/_step.html")
     context |= {"outcome": outcome, "fields": columns.fields_of(kind), "preview_rows": PREVIEW_ROWS,
                 "errors_by_row": _by_row(outcome.errors)}
     status = 422 if outcome.refused else 200

@@ -23,7 +23,7 @@ from server.fleet.models import Aircraft, HelicopterType, Site
 from server.imports import columns, values
 from server.imports.models import ImportBatch, ImportedRecord
 from server.imports.reading import Table, read_table
-from server.logbook import service as logbook
+from server.logbook import transcribe
 from server.logbook.schemas import AttemptFields, SortieCreate, SortieFields
 from server.people import service as people
 from server.people.models import Person
@@ -32,7 +32,6 @@ from server.progress.service import local_today
 from server.records import audit
 from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
 
-TRANSCRIBED = "transcribed_from_records"
 DEFAULT_TIME = time(12, 0)  # a sheet without times: midday, local
 EARLIEST = date(1950, 1, 1)
 NUMBER_UNITS = {
@@ -435,18 +434,23 @@ def _create_people(session: Session, actor: Person, plans: list[PlannedPerson]) 
 
 
 def _create_sorties(session: Session, actor: Person, batch: ImportBatch, plans: list[PlannedAttempt]) -> list[dict]:
-    links = []
-    for group in _groups(plans).values():
+    groups = list(_groups(plans).values())
+    items = []
+    for group in groups:
         first = group[0]
         rows = ", ".join(str(p.row) for p in group)
         remark = f"Transcribed from earlier records: import {batch.id}, file row{'s' if len(group) > 1 else ''} {rows}."
-        sortie = logbook.create_sortie(session, actor=actor, data=SortieCreate(
-            flown_at=first.flown_at, aircraft_id=first.aircraft.id, pilot_id=first.pilot.id, site_id=first.site.id,
-            instructor_id=first.instructor.id, remarks=remark[:4000], **first.sortie_fields))
-        for plan in group:
-            attempt = logbook.add_attempt(session, actor=actor, sortie=sortie, data=plan.attempt)
+        items.append(transcribe.TranscribedSortie(
+            data=SortieCreate(flown_at=first.flown_at, aircraft_id=first.aircraft.id, pilot_id=first.pilot.id,
+                              site_id=first.site.id, instructor_id=first.instructor.id, remarks=remark[:4000],
+                              **first.sortie_fields),
+            aircraft=first.aircraft, site=first.site, attempts=[p.attempt for p in group]))
+    sorties = transcribe.create_transcribed(session, actor=actor, sorties=items,
+                                            reason=f"transcribed from earlier records, import {batch.id}")
+    links = []
+    for sortie, group in zip(sorties, groups, strict=True):
+        for attempt, plan in zip(sorted(sortie.attempts, key=lambda a: a.sequence), group, strict=True):
             links.append({"row": plan.row, "sortie_id": sortie.id, "attempt_id": attempt.id})
-        logbook.record_signature(session, actor=actor, sortie=sortie, meaning=TRANSCRIBED)
     return links
 
 

@@ -291,8 +291,7 @@ def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning
     _require_draft(sortie)
     if not sortie.attempts:
         raise Invalid("Log at least one attempt before signing the sortie.")
-    sortie.state = "signed"
-    session.flush()
+    sortie.state = "signed"  # written with the signature in one flush
     signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning=meaning,
                           statement=MEANINGS[meaning], content_sha256=content_hash(sortie))
     session.add(signature)

@@ -5,16 +5,17 @@ from fastapi import APIRouter, Query
 
 from server.compute.standardisation import outcome
 from server.deps import ApiUser, DbSession, require_role
-from server.logbook.schemas import Maneuver, Termination
 from server.standardisation import service
 from server.standardisation.schemas import (
     AttemptBehindRead,
     AttemptsBehindRead,
     InstructorRowRead,
+    ManeuverOrAny,
     Scope,
     Show,
     StandardisationRead,
     TallyRead,
+    TerminationOrAny,
 )
 from server.web import CAUTION
 
@@ -36,26 +37,26 @@ def report_read(result: service.Report) -> StandardisationRead:
                                caution=CAUTION)
 
 
-@router.get("/standardisation", response_model=StandardisationRead)
+@router.get("/standardisation", response_model=StandardisationRead, name="standardisation_api")
 def standardisation(db: DbSession, person: ApiUser, date_from: date | None = Query(default=None, alias="from"),
-                    date_to: date | None = Query(default=None, alias="to"), maneuver: Maneuver | None = None,
-                    termination: Termination | None = None):
+                    date_to: date | None = Query(default=None, alias="to"), maneuver: ManeuverOrAny = None,
+                    termination: TerminationOrAny = None):
     """Each instructor's grades against the computed outcomes of signed attempts, beside the school's."""
     require_role(person, *READERS)
-    return report_read(service.report(db, date_from=date_from, date_to=date_to, maneuver=maneuver,
-                                      termination=termination))
+    return report_read(service.report(db, date_from=date_from, date_to=date_to, maneuver=maneuver or None,
+                                      termination=termination or None))
 
 
-@router.get("/standardisation/attempts", response_model=AttemptsBehindRead)
+@router.get("/standardisation/attempts", response_model=AttemptsBehindRead, name="standardisation_attempts_api")
 def attempts_behind(db: DbSession, person: ApiUser, instructor_id: int | None = None, show: Show = "attempts",
                     scope: Scope = "all", date_from: date | None = Query(default=None, alias="from"),
-                    date_to: date | None = Query(default=None, alias="to"), maneuver: Maneuver | None = None,
-                    termination: Termination | None = None):
+                    date_to: date | None = Query(default=None, alias="to"), maneuver: ManeuverOrAny = None,
+                    termination: TerminationOrAny = None):
     """The signed attempts one figure of the report counts, newest first."""
     require_role(person, *READERS)
     items, truncated, _ = service.attempts_behind(
         db, instructor_id=instructor_id, show=show, scope=scope, date_from=date_from, date_to=date_to,
-        maneuver=maneuver, termination=termination)
+        maneuver=maneuver or None, termination=termination or None)
     return AttemptsBehindRead(truncated=truncated, attempts=[attempt_read(a) for a in items])
 
 

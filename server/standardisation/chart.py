@@ -53,7 +53,7 @@ def standardisation_svg(rows: Sequence[ChartRow], *, school_mean: float | None) 
     height = TOP + ROW_H * len(rows) + FOOT
     parts = [
         f'<svg xmlns="http://www.w3.org/2000/svg" class="standardisation-chart" viewBox="0 0 {WIDTH} {height}" '
-        'role="img" aria-labelledby="std-chart-title std-chart-desc" font-family="Liberation Sans, DejaVu Sans, '
+        'role="group" aria-labelledby="std-chart-title" aria-describedby="std-chart-desc" font-family="Liberation Sans, DejaVu Sans, '
         'Arial, sans-serif" font-size="14">',
         '<title id="std-chart-title">Grades against the figures, and mean score, per instructor</title>',
         f'<desc id="std-chart-desc">{escape(describe(rows))}</desc>',

@@ -5,11 +5,10 @@ from fastapi import APIRouter, Query, Request
 
 from server.compute.standardisation import ENOUGH_GRADED
 from server.deps import DbSession, PageUser, require_role
-from server.logbook.schemas import Maneuver, Termination
 from server.standardisation import service
 from server.standardisation.api import READERS
 from server.standardisation.chart import ChartRow, standardisation_svg
-from server.standardisation.schemas import Scope, Show
+from server.standardisation.schemas import ManeuverOrAny, Scope, Show, TerminationOrAny
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -38,11 +37,12 @@ def _filters(result_from: date, result_to: date, maneuver: str | None, terminati
 def standardisation_page(request: Request, db: DbSession, person: PageUser,
                          date_from: date | None = Query(default=None, alias="from"),
                          date_to: date | None = Query(default=None, alias="to"),
-                         maneuver: Maneuver | None = None, termination: Termination | None = None):
+                         maneuver: ManeuverOrAny = None, termination: TerminationOrAny = None):
     """The table and the chart; the filter asks htmx for the report alone."""
     require_role(person, *READERS)
-    result = service.report(db, date_from=date_from, date_to=date_to, maneuver=maneuver, termination=termination)
-    filters = _filters(result.date_from, result.date_to, maneuver, termination)
+    result = service.report(db, date_from=date_from, date_to=date_to, maneuver=maneuver or None,
+                            termination=termination or None)
+    filters = _filters(result.date_from, result.date_to, result.maneuver, result.termination)
     base = request.url_for("standardisation_attempts")
 
     def link(instructor_id: int | None, scope: str = "all"):
@@ -69,15 +69,15 @@ def attempts_page(request: Request, db: DbSession, person: PageUser, instructor_
                   show: Show = "attempts", scope: Scope = "all",
                   date_from: date | None = Query(default=None, alias="from"),
                   date_to: date | None = Query(default=None, alias="to"),
-                  maneuver: Maneuver | None = None, termination: Termination | None = None):
+                  maneuver: ManeuverOrAny = None, termination: TerminationOrAny = None):
     """The signed attempts one figure counts, each linking to its sortie sheet."""
     require_role(person, *READERS)
     items, truncated, (start, end) = service.attempts_behind(
         db, instructor_id=instructor_id, show=show, scope=scope, date_from=date_from, date_to=date_to,
-        maneuver=maneuver, termination=termination)
+        maneuver=maneuver or None, termination=termination or None)
     return render(request, "standardisation/attempts.html", {
         "person": person, "items": items, "truncated": truncated, "limit": service.MAX_LISTED,
         "show_label": SHOW_LABELS[show], "scope_label": SCOPE_LABELS[scope],
         "instructor": service.instructor_name(db, instructor_id), "date_from": start, "date_to": end,
-        "filters": _filters(start, end, maneuver, termination), "outcome_of": service.outcome_of,
+        "filters": _filters(start, end, maneuver or None, termination or None), "outcome_of": service.outcome_of,
     })

@@ -6,6 +6,9 @@ from pydantic import BaseModel, ConfigDict, Field
 
 from server.compute.standardisation import ENOUGH_GRADED, Tally
 
+# An empty value (as a form's "every maneuver" choice sends it) means any.
+ManeuverOrAny = Literal["straight_in", "turn_180", "turn_360", "hovering", ""] | None
+TerminationOrAny = Literal["power_recovery", "to_hover", "touchdown", ""] | None
 Show = Literal["attempts", "graded", "agree", "lenient", "strict"]
 Scope = Literal["all", "shared", "peers"]
 TOO_FEW = f"Too few to judge: fewer than {ENOUGH_GRADED} graded attempts with figures to compare."

@@ -110,6 +110,13 @@ def test_one_maneuver_narrows_every_figure(chief_client, world, scenario):
     assert figures(rows[world.instructor.id]) == counts(scenario[world.instructor.id], lambda r: r[0] == "turn_180")
 
 
+def test_empty_filters_mean_every_kind(chief_client, world, scenario):
+    """The contract's own example sends maneuver= and termination= empty."""
+    body = chief_client.get("/api/v1/standardisation", params=RANGE | {"maneuver": "", "termination": ""}).json()
+    assert figures(body["school"]) == counts([r for made in scenario.values() for r in made])
+    assert chief_client.get("/standardisation", params=RANGE | {"maneuver": "", "termination": ""}).status_code == 200
+
+
 def test_shared_figures_keep_to_the_kinds_both_teach(chief_client, world, scenario):
     body = chief_client.get("/api/v1/standardisation", params=RANGE).json()
     ivo = next(r for r in body["rows"] if r["instructor_id"] == world.instructor.id)
