@@ -34,7 +34,14 @@ def parse_mapping(mapping: str | None) -> dict | None:
     return value
 
 
-@router.post("/imports", response_model=ImportRead, responses={422: {"model": ImportRead}})
+# A refused import answers 422 with the whole report (and `detail`); bad form fields get the usual error body.
+REFUSED = {422: {"description": "The import was refused (every problem listed), or the form was not valid.",
+                 "content": {"application/json": {"schema": {"anyOf": [
+                     {"$ref": "#/components/schemas/ImportRead"},
+                     {"$ref": "#/components/schemas/HTTPValidationError"}]}}}}}
+
+
+@router.post("/imports", response_model=ImportRead, responses=REFUSED)
 def import_file(db: DbSession, person: ApiUser, file: UploadFile = File(...), kind: Kind = Form(...),
                 mapping: str | None = Form(default=None), dry_run: bool = Form(default=True),
                 only_clean: bool = Form(default=False)):
