@@ -1,6 +1,4 @@
 """Pages: the readiness board and its CSV, currency rules, calendar links, a person's own currency."""
-import csv
-import io
 from datetime import date
 
 from fastapi import APIRouter, Query, Request
@@ -12,18 +10,19 @@ from server.currency import board, feeds
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
 from server.currency.schemas import RuleCreate
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
 from server.errors import Invalid, NotFound
 from server.fleet.models import HelicopterType
 from server.forms import validate
+from server.logbook import access
 from server.people import service as people
-from server.people.models import ROLE_LABELS, ROLES, Person
-from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+from server.people.deps import PageUser, SetupUser
+from server.people.models import Person
+from server.vocabulary import MANEUVER_LABELS, ROLES, ROLE_LABELS, TERMINATION_LABELS
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
 
-PAGE_SIZE = 100
 STATUS_CHOICES = tuple(board.STATUS_LABELS.items())
 
 
@@ -33,8 +32,8 @@ def _as_of(db, raw: str | None) -> tuple[date, str | None]:
         try:
             return date.fromisoformat(raw), None
         except ValueError:
-            return board.school_today(db), f"“{raw}” is not a date; showing today instead."
-    return board.school_today(db), None
+            return people.school_today(db), f"“{raw}” is not a date; showing today instead."
+    return people.school_today(db), None
 
 
 def _board_filters(role: str | None, rule_id: str | None, status: str | None) -> dict:
@@ -47,56 +46,42 @@ def _board_filters(role: str | None, rule_id: str | None, status: str | None) ->
 
 
 @router.get("/currency", name="readiness_board")
-def readiness_board(request: Request, db: DbSession, person: PageUser, as_of: str | None = None,
+def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: str | None = None,
                     role: str | None = None, rule_id: str | None = None, status: str | None = None,
                     page: int = Query(default=1, ge=1), show: str | None = None):
     """Every active pilot against every rule that applies, soonest trouble first."""
-    require_role(person, "chief_pilot", "admin")
     day, message = _as_of(db, as_of)
     filters = _board_filters(role, rule_id, status)
-    rows = board.board(db, as_of=day, **filters)
-    counts = {key: 0 for key in board.STATUS_LABELS}
-    for row in rows:
-        counts[row.status] += 1
-    show_all = show == "all"
-    pages = max(1, -(-len(rows) // PAGE_SIZE))
-    page = min(page, pages)
-    shown = rows if show_all else rows[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
+    shown = board.board_page(board.board(db, as_of=day, **filters), page=page, show_all=show == "all")
     query = {"as_of": day.isoformat(), **{k: v for k, v in filters.items() if v is not None}}
     return render(request, "currency/board.html", {
-        "person": person, "rows": shown, "total": len(rows), "counts": counts, "as_of": day, "message": message,
-        "as_of_words": format_date(day),
+        "person": person, "rows": shown.rows, "total": shown.total, "counts": shown.counts, "as_of": day,
+        "message": message, "as_of_words": format_date(day),
         "filters": filters, "rules": rules_service.list_rules(db), "roles": ROLES, "statuses": STATUS_CHOICES,
-        "page": page, "pages": pages, "show_all": show_all, "query": query,
-        "first_index": 0 if show_all else (page - 1) * PAGE_SIZE,
+        "page": shown.page, "pages": shown.pages, "show_all": shown.show_all, "query": query,
+        "first_index": shown.first_index,
     }, fragment="currency/_board.html")
 
 
 @router.get("/currency/board.csv", name="readiness_board_csv")
-def readiness_board_csv(db: DbSession, person: PageUser, as_of: str | None = None, role: str | None = None,
+def readiness_board_csv(db: DbSession, person: SetupUser, as_of: str | None = None, role: str | None = None,
                         rule_id: str | None = None, status: str | None = None):
     """The board as shown (same filters, every page), for a spreadsheet."""
-    require_role(person, "chief_pilot", "admin")
     day, _ = _as_of(db, as_of)
     rows = board.board(db, as_of=day, **_board_filters(role, rule_id, status))
-    out = io.StringIO()
-    writer = csv.writer(out)
-    writer.writerow(board.CSV_HEADER)
-    writer.writerows(row.csv_row() for row in rows)
-    # A byte-order mark lets common spreadsheet programs read the file as UTF-8.
-    return Response("\ufeff" + out.getvalue(), media_type="text/csv; charset=utf-8", headers={
+    return Response(board.board_csv(rows), media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
 
 
 @router.get("/currency/people/{person_id}", name="person_currency_page")
 def person_currency_page(request: Request, db: DbSession, person: PageUser, person_id: int):
     """One person's own currency: a page, or the fragment a home page or progress file loads."""
-    if not people.can_view_pilot(db, viewer=person, pilot_id=person_id):
+    if not access.can_view_pilot(db, viewer=person, pilot_id=person_id):
         raise NotFound("No such person.")
     subject = db.get(Person, person_id)
     if subject is None:
         raise NotFound("No such person.")
-    day = board.school_today(db)
+    day = people.school_today(db)
     rows = board.person_standings(db, person_id=person_id, as_of=day)
     return render(request, "currency/person.html", {
         "person": person, "subject": subject, "own_currency": rows, "as_of": day, "as_of_words": format_date(day),
@@ -172,8 +157,7 @@ NEW_RULE_DEFAULTS = {"window": 90, "window_unit": "days", "min_count": 1, "warn_
 
 
 @router.get("/currency/rules", name="currency_rules")
-def currency_rules(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot", "admin")
+def currency_rules(request: Request, db: DbSession, person: SetupUser):
     return _rules_page(request, db, person, values=NEW_RULE_DEFAULTS, errors={}, message=None)
 
 
@@ -188,8 +172,7 @@ async def _submitted_rule(request: Request, db) -> tuple[RuleCreate | None, dict
 
 
 @router.post("/currency/rules", name="currency_rule_create")
-async def currency_rule_create(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot", "admin")
+async def currency_rule_create(request: Request, db: DbSession, person: SetupUser):
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
         try:
@@ -203,8 +186,7 @@ async def currency_rule_create(request: Request, db: DbSession, person: PageUser
 
 
 @router.get("/currency/rules/{rule_id}", name="currency_rule_edit")
-def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+def currency_rule_edit(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rule = rules_service.get_rule(db, rule_id=rule_id)
     return render(request, "currency/rule_edit.html", {
         "person": person, "rule": rule, "values": _rule_values_for_form(rule), "errors": {}, "message": None,
@@ -213,8 +195,7 @@ def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_i
 
 
 @router.post("/currency/rules/{rule_id}", name="currency_rule_update")
-async def currency_rule_update(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+async def currency_rule_update(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rule = rules_service.get_rule(db, rule_id=rule_id)
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
@@ -231,8 +212,7 @@ async def currency_rule_update(request: Request, db: DbSession, person: PageUser
 
 
 @router.post("/currency/rules/{rule_id}/delete", name="currency_rule_delete")
-def currency_rule_delete(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+def currency_rule_delete(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rules_service.delete_rule(db, actor=person, rule=rules_service.get_rule(db, rule_id=rule_id))
     return RedirectResponse(request.url_for("currency_rules"), status_code=303)
 

@@ -4,7 +4,8 @@ import json
 from fastapi import APIRouter, File, Form, UploadFile
 from fastapi.responses import JSONResponse
 
-from server.deps import ApiUser, DbSession, require_role
+from server.deps import DbSession
+from server.people.deps import ApiUser, require_role
 from server.errors import Invalid
 from server.imports import service
 from server.imports.reading import MAX_BYTES

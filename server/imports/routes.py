@@ -6,7 +6,8 @@ from sqlalchemy import select
 from starlette.concurrency import run_in_threadpool
 from starlette.datastructures import UploadFile
 
-from server.deps import DbSession, SetupUser
+from server.deps import DbSession
+from server.people.deps import SetupUser
 from server.errors import Conflict, Invalid
 from server.imports import columns, service
 from server.imports.api import read_upload

@@ -18,7 +18,6 @@ from sqlalchemy import insert, select
 from sqlalchemy.orm import Session
 
 from server.errors import Conflict, FlarebookError, Forbidden, Invalid, NotFound
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.imports import columns, values
 from server.imports.models import ImportBatch, ImportedRecord
@@ -28,9 +27,8 @@ from server.logbook.schemas import AttemptFields, SortieCreate, SortieFields
 from server.people import service as people
 from server.people.models import Person
 from server.people.security import new_secret
-from server.progress.service import local_today
 from server.records import audit
-from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+from server.vocabulary import MANEUVER_LABELS, TERMINATION_LABELS
 
 DEFAULT_TIME = time(12, 0)  # a sheet without times: midday, local
 EARLIEST = date(1950, 1, 1)
@@ -262,8 +260,8 @@ def _registration(text: str) -> str:
 def check_attempts(session: Session, table: Table, mapping: dict) -> tuple[list[PlannedAttempt], list[RowError]]:
     """Each row as a past attempt (and its sortie) to create, or the reasons it cannot be one."""
     directory = _Directory(session)
-    zone = ZoneInfo(fleet.school(session).timezone)
-    today = local_today(session)
+    zone = ZoneInfo(people.school(session).timezone)
+    today = people.school_today(session)
     planned, errors = [], []
     for number, row in table.rows:
         problems: list[RowError] = []
@@ -372,7 +370,7 @@ def run_import(session: Session, *, actor: Person, kind: str, data: bytes, file_
         check = check_people if kind == "people" else check_attempts
         plans, errors = check(session, table, used)
     ok = len(plans)
-    zone = ZoneInfo(fleet.school(session).timezone)
+    zone = ZoneInfo(people.school(session).timezone)
     would = _zero()
     if kind == "people":
         would["people"] = ok
@@ -428,7 +426,7 @@ def _create_people(session: Session, actor: Person, plans: list[PlannedPerson]) 
     for plan in plans:
         # A password no one knows: the person signs in once an administrator sets one.
         person = people.create_person(session, name=plan.name, email=plan.email, roles=plan.roles,
-                                      password=new_secret(), actor_id=actor.id)
+                                      password=new_secret(), actor=actor)
         links.append({"row": plan.row, "person_id": person.id})
     return links
 

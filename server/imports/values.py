@@ -6,7 +6,7 @@ and raises CellError with a message a person understands.
 import re
 from datetime import date, datetime, time, timedelta
 
-from server.people.models import ROLES
+from server.vocabulary import ROLES
 
 
 class CellError(ValueError):

@@ -11,12 +11,12 @@ from dataclasses import dataclass
 from sqlalchemy.orm import Session
 
 from server.errors import Forbidden
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, Site
 from server.logbook import derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
 from server.logbook.schemas import AttemptFields, SortieCreate
+from server.people import service as people
 from server.people.models import Person
 from server.records import audit
 from server.training.service import standard_for
@@ -51,12 +51,12 @@ def create_transcribed(session: Session, *, actor: Person, sorties: list[Transcr
     session.add_all(built)
     session.flush()
 
-    school = fleet.school(session)  # held, so the session's weak identity map keeps it for local_date
+    school = people.school(session)  # held, so the session's weak identity map keeps it for local_date
     standards: dict[tuple[int, str], object] = {}  # nothing changes standards during the import
     # No flush between attempts: they go to the database together, a few multi-row INSERTs in all.
     with session.no_autoflush:
         for sortie, item in zip(built, sorties, strict=True):
-            flown_on = logbook.local_date(session, sortie.flown_at)
+            flown_on = people.local_date(session, sortie.flown_at)
             for sequence, fields in enumerate(item.attempts, start=1):
                 key = (sortie.pilot_id, fields.maneuver)
                 if key not in standards:

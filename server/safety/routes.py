@@ -4,7 +4,8 @@ from datetime import date
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import Response
 
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
+from server.people.deps import PageUser, require_role
 from server.safety import service as safety
 from server.safety.schemas import Dimension, FlagCode
 from server.web import render

@@ -4,7 +4,8 @@ from datetime import date
 from fastapi import APIRouter, Query
 
 from server.compute.standardisation import outcome
-from server.deps import ApiUser, DbSession, require_role
+from server.deps import DbSession
+from server.people.deps import ApiUser, require_role
 from server.standardisation import service
 from server.standardisation.schemas import (
     AttemptBehindRead,

@@ -4,7 +4,8 @@ from datetime import date
 from fastapi import APIRouter, Query, Request
 
 from server.compute.standardisation import ENOUGH_GRADED
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
+from server.people.deps import PageUser, require_role
 from server.standardisation import service
 from server.standardisation.api import READERS
 from server.standardisation.chart import ChartRow, standardisation_svg

@@ -23,7 +23,8 @@ from server.compute.standardisation import (
 from server.errors import Invalid
 from server.logbook.models import Attempt, Sortie
 from server.people.models import Person
-from server.progress.service import counted_sorties_clause, local_today
+from server.logbook.counted import counted_sorties_clause
+from server.people.service import school_today
 from server.training.models import Standard
 
 DEFAULT_DAYS = 365
@@ -72,7 +73,7 @@ class Report:
 
 def date_range(session: Session, *, date_from: date | None, date_to: date | None) -> tuple[date, date]:
     """The range asked for; by default the twelve months up to today at the school."""
-    date_to = date_to or local_today(session)
+    date_to = date_to or school_today(session)
     date_from = date_from or date_to - timedelta(days=DEFAULT_DAYS)
     if date_from > date_to:
         raise Invalid("The start of the period must not be after its end.")

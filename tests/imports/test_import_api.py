@@ -13,12 +13,11 @@ from sqlalchemy import func, select
 
 from server.imports.models import ImportBatch, ImportedRecord
 from server.logbook import service as logbook
-from server.logbook.models import Attempt, Sortie
+from server.logbook.models import MEANINGS, Attempt, Signature, Sortie
 from server.logbook.schemas import AttemptFields
 from server.people import service as people
 from server.people.models import Person
 from server.records import audit
-from server.records.models import MEANINGS, Signature
 from tests.conftest import sign_in
 from tests.imports.test_reading import csv_bytes, xlsx_bytes
 
