@@ -10,6 +10,7 @@ from server.errors import FlarebookError
 from server.imports import commands as import_commands
 from server.migrate import upgrade
 import server.models  # noqa: F401  (every table on Base, for export)
+from server.logbook import track_commands
 from server.people import service as people
 from server.people.models import Person
 from server.records import commands as records_commands
@@ -87,6 +88,7 @@ def build_parser() -> argparse.ArgumentParser:
     new.set_defaults(run=cmd_token_new)
     records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
     import_commands.add_commands(sub)  # import KIND FILE
+    track_commands.add_commands(sub)  # track import
     return parser
 
 

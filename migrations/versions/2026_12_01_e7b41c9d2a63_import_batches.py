@@ -1,7 +1,7 @@
 """Import batches (issue 14): one row per import of earlier records, and what each imported row became.
 
 Revision ID: e7b41c9d2a63
-Revises: c3a1f0b7d2e4
+Revises: afa3bff855a7
 Created: 2026-12-01 22:17:55
 """
 import sqlalchemy as sa
@@ -10,7 +10,7 @@ from alembic import op
 import server.types
 
 revision = 'e7b41c9d2a63'
-down_revision = 'c3a1f0b7d2e4'
+down_revision = 'afa3bff855a7'
 branch_labels = None
 depends_on = None
 
