@@ -16,6 +16,8 @@ from server.db import make_engine, make_session_factory
 from server.errors import FlarebookError
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
+from server.imports import api as imports_api
+from server.imports import routes as imports_routes
 from server.logbook import api as logbook_api
 from server.logbook import history_routes, people_api as visible_people_api, type_page_routes
 from server.logbook import routes as logbook_routes
@@ -33,6 +35,8 @@ from server.request_bodies import BodyLimit, TextFieldsOnly
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
 from server.security import SecurityHeaders
+from server.standardisation import api as standardisation_api
+from server.standardisation import routes as standardisation_routes
 from server.training import api as training_api
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
@@ -92,6 +96,10 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)
+    app.include_router(standardisation_api.router, prefix="/api/v1")
+    app.include_router(standardisation_routes.router)
+    app.include_router(imports_api.router, prefix="/api/v1")
+    app.include_router(imports_routes.router)
     _add_error_handlers(app)
     describe_errors(app)
     refuse_out_of_range(app)

@@ -7,6 +7,7 @@ from sqlalchemy import select
 from server.config import get_settings
 from server.db import make_engine, make_session_factory, transaction
 from server.errors import FlarebookError
+from server.imports import commands as import_commands
 from server.migrate import upgrade
 import server.models  # noqa: F401  (every table on Base, for export)
 from server.logbook import track_commands
@@ -102,6 +103,7 @@ def build_parser() -> argparse.ArgumentParser:
     revoke.set_defaults(run=cmd_token_revoke)
     # backup, restore, export, audit verify, audit head; with every area's signed-record check
     records_commands.add_commands(sub, record_checks=RECORD_CHECKS)
+    import_commands.add_commands(sub)  # import KIND FILE
     track_commands.add_commands(sub)  # track import
     return parser
 

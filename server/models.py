@@ -3,6 +3,7 @@ from server.currency.models import CalendarFeed, CurrencyRule
 from server.db import Base
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.idempotency import IdempotencyKey
+from server.imports.models import ImportBatch, ImportedRecord
 from server.logbook.models import Attempt, Signature, Sortie, Track
 from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
 from server.records.models import AuditEvent
@@ -19,7 +20,7 @@ from server.training.models import (
 
 __all__ = [
     "Aircraft", "ApiToken", "Attempt", "AuditEvent", "Base", "CalendarFeed", "CurrencyRule",
-    "Enrolment", "HelicopterType", "IdempotencyKey", "Lesson", "LessonCompletion",
+    "Enrolment", "HelicopterType", "IdempotencyKey", "ImportBatch", "ImportedRecord", "Lesson", "LessonCompletion",
     "LessonRequirement", "Person", "PersonRole", "Program", "School", "SignInFailure", "Signature",
     "Site", "Sortie", "Stage", "StageCheck", "Standard", "Track", "UserSession",
 ]

@@ -21,7 +21,7 @@ LAYERS = [
     {"fleet"},
     {"training"},
     {"logbook"},
-    {"progress", "currency", "safety"},
+    {"progress", "currency", "safety", "standardisation", "imports"},
     {"app", "cli", "demo", "models", "signed_records", "account"},
 ]
 LEVEL = {name: level for level, names in enumerate(LAYERS) for name in names}

@@ -109,7 +109,8 @@ def score(attempt: Attempt, sortie: Sortie, standard: Standard | None) -> None:
         weight_lb=sortie.takeoff_weight_lb, reference_weight_lb=helicopter.reference_weight_lb,
         density_ratio=sortie.density_ratio,
     )
-    attempt.flare_band_low_ft, attempt.flare_band_high_ft = round(band[0]), round(band[1])
+    # Floats, as the columns read back: the signed content hash must not change when the row is reloaded.
+    attempt.flare_band_low_ft, attempt.flare_band_high_ft = float(round(band[0])), float(round(band[1]))
     attempt.headwind_kt = attempt.crosswind_kt = None
     if sortie.wind_dir_deg is not None and sortie.wind_kt is not None and attempt.landing_dir_deg is not None:
         wind = wind_components(wind_dir_deg=sortie.wind_dir_deg, wind_kt=sortie.wind_kt,

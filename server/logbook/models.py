@@ -138,6 +138,11 @@ MEANINGS = {
         "and that I observed and graded each one."
     ),
     "pilot_acknowledges": "I have read this signed record of my sortie.",
+    # Signed by the chief pilot who imports a school's earlier records (issue 14).
+    "transcribed_from_records": (
+        "I certify that this sortie and its practice autorotations were transcribed from the school's "
+        "earlier records as those records show them; I did not observe the flights myself."
+    ),
 }
 
 

@@ -344,13 +344,17 @@ def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: st
 
 def record_instructor_signature(session: Session, *, actor: Person, sortie: Sortie) -> Signature:
     """Seal a draft with the instructor's signature; callers have checked who signs and how."""
+    return record_signature(session, actor=actor, sortie=sortie, meaning="instructor_certifies")
+
+
+def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning: str) -> Signature:
+    """Seal a draft with a signature that means one of MEANINGS; callers have checked who signs and how."""
     _require_draft(sortie)
     if not sortie.attempts:
         raise Invalid("Log at least one attempt before signing the sortie.")
-    sortie.state = "signed"
-    session.flush()
-    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning="instructor_certifies",
-                          statement=MEANINGS["instructor_certifies"], content_sha256=content_hash(sortie))
+    sortie.state = "signed"  # written with the signature in one flush
+    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning=meaning,
+                          statement=MEANINGS[meaning], content_sha256=content_hash(sortie))
     session.add(signature)
     session.flush()
     # The record as signed goes into the chain too, so a later check can say which field changed.

@@ -209,6 +209,18 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("GET", "/currency/calendar"): page(),
     ("POST", "/currency/calendar"): CHANGE_PAGE,
     ("POST", "/currency/calendar/{feed_id}/revoke"): CHANGE_PAGE,
+
+    # Standardisation and imports of earlier records (issue 14): chief pilots and administrators.
+    ("GET", "/api/v1/standardisation"): api(CHIEF_ADMIN),
+    ("GET", "/api/v1/standardisation/attempts"): api(CHIEF_ADMIN),
+    ("GET", "/standardisation"): page(CHIEF_ADMIN),
+    ("GET", "/standardisation/attempts"): page(CHIEF_ADMIN),
+    ("POST", "/api/v1/imports"): CHANGE_API,
+    ("GET", "/api/v1/imports"): api(CHIEF_ADMIN),
+    ("GET", "/api/v1/imports/{batch_id}"): api(CHIEF_ADMIN),
+    ("GET", "/setup/imports"): page(CHIEF_ADMIN),
+    ("POST", "/setup/imports"): CHANGE_PAGE,
+    ("GET", "/setup/imports/{batch_id}"): page(CHIEF_ADMIN),
 }
 
 # Query strings a route needs to answer at all.
@@ -290,8 +302,11 @@ def school(app, db, world):
     feed = made(chief.post("/api/v1/calendar-feeds", json={"person_id": world.student.id}))
     secret = re.search(r"/calendar/([^/]+)\.ics", feed["url"]).group(1)
     token_id = db.scalars(select(ApiToken.id).where(ApiToken.person_id == world.chief.id)).first()
-    common = {"token_id": token_id, "type_id": world.helicopter.id, "program_id": program["id"],
-              "lesson_id": lesson_id, "index": 1,
+    batch = chief.post("/api/v1/imports", data={"kind": "people", "dry_run": "false"},
+                       files={"file": ("people.csv", b"Name,Email\r\nMatrix Newcomer,newcomer@school.example\r\n")})
+    assert batch.status_code == 200, batch.text
+    common = {"token_id": token_id, "batch_id": batch.json()["batch_id"], "type_id": world.helicopter.id,
+              "program_id": program["id"], "lesson_id": lesson_id, "index": 1,
               "standard_id": standard["id"], "rule_id": rule["id"], "feed_id": feed["id"], "secret": secret}
     return {
         "own": common | {"person_id": world.student.id, "pilot_id": world.student.id, "sortie_id": own.id,
