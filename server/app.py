@@ -1,7 +1,7 @@
 """The application factory."""
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
-from fastapi.responses import JSONResponse, RedirectResponse
+from fastapi.responses import FileResponse, JSONResponse, RedirectResponse
 from fastapi.staticfiles import StaticFiles
 from starlette.middleware.gzip import GZipMiddleware
 
@@ -12,13 +12,16 @@ from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
 from server.deps import SignInRequired
 from server.errors import FlarebookError
+from server.head import HeadAsGet
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
+from server.fleet import setup_routes as fleet_setup_routes
 from server.logbook import api as logbook_api
 from server.logbook import routes as logbook_routes
 from server.openapi_errors import describe_errors
 from server.people import api as people_api
 from server.people import routes as people_routes
+from server.people import setup_routes as people_setup_routes
 from server.progress import api as progress_api
 from server.progress import routes as progress_routes
 from server.safety import api as safety_api
@@ -51,6 +54,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.add_middleware(WriterQueue)  # writing requests take turns: see server/records/write_queue.py
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
+    app.add_middleware(HeadAsGet)  # outermost: the GET's headers, Content-Length included, without the body
+    app.add_api_route("/favicon.ico", _favicon, include_in_schema=False)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
     for module in (people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
@@ -63,7 +68,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(safety_api.router, prefix="/api/v1")
     app.include_router(safety_routes.router)
     app.include_router(standards_api.router, prefix="/api/v1")
-    for module in (fleet_routes, standards_routes):
+    for module in (fleet_routes, fleet_setup_routes, people_setup_routes, standards_routes):
         app.include_router(module.router)
     app.include_router(records_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
@@ -73,6 +78,12 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     describe_errors(app)
     refuse_out_of_range(app)
     return app
+
+
+def _favicon():
+    """Browsers and tools ask for /favicon.ico; the icon itself is the SVG in static/."""
+    return FileResponse(PROJECT_ROOT / "static" / "favicon.svg", media_type="image/svg+xml",
+                        headers={"Cache-Control": "public, max-age=86400"})
 
 
 def readable_errors(exc: RequestValidationError) -> list[dict]:

@@ -4,6 +4,7 @@ from fastapi.templating import Jinja2Templates
 from starlette.responses import HTMLResponse
 
 from server.config import PROJECT_ROOT
+from server.navigation import main_nav
 from server.people.models import ROLE_LABELS
 from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
 
@@ -31,10 +32,16 @@ def _fmt(value, digits: int = 0, unit: str = "", *, trim: bool = False) -> str:
     return f"{text} {unit}".strip()
 
 
+def _labelled(keys, labels: dict) -> str:
+    """Stored keys in words: ["chief_pilot", "instructor"] reads "Chief pilot, Instructor"."""
+    return ", ".join(labels.get(key, key) for key in keys)
+
+
 templates.env.filters["num"] = _fmt
+templates.env.filters["labelled"] = _labelled
 templates.env.globals.update(
     CAUTION=CAUTION, MANEUVER_LABELS=MANEUVER_LABELS, TERMINATION_LABELS=TERMINATION_LABELS,
-    ROLE_LABELS=ROLE_LABELS, STATE_LABELS=STATE_LABELS,
+    ROLE_LABELS=ROLE_LABELS, STATE_LABELS=STATE_LABELS, main_nav=main_nav,
 )
 
 

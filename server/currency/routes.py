@@ -161,7 +161,8 @@ def _rules_page(request: Request, db, person: Person, *, values: dict, errors: d
     rules = rules_service.list_rules(db)
     return render(request, "currency/rules.html", {
         "person": person, "rules": rules, "values": values, "errors": errors, "message": message,
-        "described": {r.id: rules_service.describe(r, names)[0] for r in rules},
+        # "at least 1 satisfactory autorotation", "at least 2 ... autorotations"
+        "described": {r.id: rules_service.describe(r, names)[0 if r.min_count != 1 else 1] for r in rules},
         "windows": {r.id: rules_service.window_words(r) for r in rules},
         **_rule_choices(db),
     }, status_code=status_code)

@@ -1,0 +1,38 @@
+"""The main navigation: which pages each role gets, and which one the current address belongs to."""
+from dataclasses import dataclass
+
+from server.people.models import Person
+
+
+@dataclass(frozen=True)
+class NavItem:
+    label: str
+    href: str
+    roles: tuple[str, ...]  # empty: everyone
+    prefixes: tuple[str, ...]  # addresses that belong to this page
+
+
+NAV = (
+    NavItem("Sorties", "/sorties", (), ("/sorties", "/attempts")),
+    NavItem("Start a sortie", "/sorties/new", ("instructor", "chief_pilot"), ("/sorties/new",)),
+    NavItem("Progress", "/progress", (), ("/progress", "/people/", "/enrolments")),
+    NavItem("Programs", "/programs", ("instructor", "chief_pilot", "admin"), ("/programs",)),
+    NavItem("Readiness", "/currency", ("chief_pilot", "admin"), ("/currency",)),
+    NavItem("Safety digest", "/safety", ("chief_pilot",), ("/safety",)),
+    NavItem("Setup", "/setup", ("chief_pilot", "admin"), ("/setup",)),
+)
+
+
+def _matches(prefix: str, path: str) -> bool:
+    return path == prefix or path.startswith(prefix.rstrip("/") + "/") or (prefix.endswith("/") and path.startswith(prefix))
+
+
+def main_nav(person: Person, path: str) -> list[dict]:
+    """The person's links, the one whose address is the longest match with `path` marked current."""
+    items = [item for item in NAV if not item.roles or person.has_role(*item.roles)]
+    best, best_length = None, -1
+    for item in items:
+        for prefix in item.prefixes:
+            if _matches(prefix, path) and len(prefix) > best_length:
+                best, best_length = item, len(prefix)
+    return [{"label": item.label, "href": item.href, "current": item is best} for item in items]
