@@ -7,19 +7,19 @@ from server.people.models import Person
 @dataclass(frozen=True)
 class NavItem:
     label: str
-    href: str
+    route: str  # the route's name, for url_for
     roles: tuple[str, ...]  # empty: everyone
     prefixes: tuple[str, ...]  # addresses that belong to this page
 
 
 NAV = (
-    NavItem("Sorties", "/sorties", (), ("/sorties", "/attempts")),
-    NavItem("Start a sortie", "/sorties/new", ("instructor", "chief_pilot"), ("/sorties/new",)),
-    NavItem("Progress", "/progress", (), ("/progress", "/people/", "/enrolments")),
-    NavItem("Programs", "/programs", ("instructor", "chief_pilot", "admin"), ("/programs",)),
-    NavItem("Readiness", "/currency", ("chief_pilot", "admin"), ("/currency",)),
-    NavItem("Safety digest", "/safety", ("chief_pilot",), ("/safety",)),
-    NavItem("Setup", "/setup", ("chief_pilot", "admin"), ("/setup",)),
+    NavItem("Sorties", "sortie_list", (), ("/sorties", "/attempts")),
+    NavItem("Start a sortie", "sortie_new", ("instructor", "chief_pilot"), ("/sorties/new",)),
+    NavItem("Progress", "progress_index", (), ("/progress", "/people/", "/enrolments")),
+    NavItem("Programs", "program_list", ("instructor", "chief_pilot", "admin"), ("/programs",)),
+    NavItem("Readiness", "readiness_board", ("chief_pilot", "admin"), ("/currency",)),
+    NavItem("Safety digest", "safety_digest", ("chief_pilot",), ("/safety",)),
+    NavItem("Setup", "setup_home", ("chief_pilot", "admin"), ("/setup",)),
 )
 
 
@@ -35,4 +35,4 @@ def main_nav(person: Person, path: str) -> list[dict]:
         for prefix in item.prefixes:
             if _matches(prefix, path) and len(prefix) > best_length:
                 best, best_length = item, len(prefix)
-    return [{"label": item.label, "href": item.href, "current": item is best} for item in items]
+    return [{"label": item.label, "route": item.route, "current": item is best} for item in items]
