@@ -126,3 +126,61 @@ def board(session: Session, *, as_of: date, role: str | None = None, rule_id: in
 
 def person_standings(session: Session, *, person_id: int, as_of: date) -> list[Standing]:
     return standings(session, as_of=as_of, person_ids=[person_id])
+
+
+# ---- the board as a grid: one row per pilot, one column per rule ---------------------------------
+
+SHORT_NAME_LENGTH = 36  # two lines of a column heading at 1024 px with six rules
+
+
+def short_rule_name(name: str, limit: int = SHORT_NAME_LENGTH) -> str:
+    """A column heading: the rule's name, cut at a word before `limit` characters when longer."""
+    if len(name) <= limit:
+        return name
+    cut = name[:limit].rsplit(" ", 1)[0].rstrip(" ,;:-") or name[:limit]
+    return cut + "…"
+
+
+def cell_words(standing: Standing) -> str:
+    """Under the status in a grid cell: "until 1 Dec 2026", "since 3 Nov 2026", or what is missing."""
+    if standing.current_until is None:
+        if standing.status == "never":
+            return f"{standing.needed} to fly"
+        return f"not yet current: {standing.needed} more" if standing.needed else ""
+    day = standing.current_until + timedelta(days=1) if standing.status == "lapsed" else standing.current_until
+    return f"{'since' if standing.status == 'lapsed' else 'until'} {day.day} {day:%b %Y}"
+
+
+@dataclass(frozen=True)
+class GridRow:
+    """One pilot across the board's rules; a rule that does not apply to them has no cell."""
+
+    person_id: int
+    name: str
+    roles: tuple[str, ...]
+    cells: dict[int, Standing]
+
+    @property
+    def worst(self) -> Standing:
+        return min(self.cells.values(), key=Standing.sort_key)
+
+    @property
+    def role_words(self) -> str:
+        return self.worst.role_words
+
+    def sort_key(self) -> tuple:
+        """Soonest trouble first: the pilot's worst cell decides, then the name."""
+        worst = self.worst
+        return (STATUS_RANK[worst.status], worst.current_until or date.max, self.name.casefold(), self.person_id)
+
+
+def grid(rows: Sequence[Standing], *, status: str | None = None) -> list[GridRow]:
+    """The standings pivoted to one row per pilot, soonest trouble first; `status` keeps pilots with a cell in it."""
+    by_person: dict[int, GridRow] = {}
+    for row in rows:
+        line = by_person.setdefault(row.person_id, GridRow(person_id=row.person_id, name=row.name,
+                                                           roles=row.roles, cells={}))
+        line.cells[row.rule_id] = row
+    found = [line for line in by_person.values() if status is None
+             or any(cell.status == status for cell in line.cells.values())]
+    return sorted(found, key=GridRow.sort_key)

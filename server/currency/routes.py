@@ -23,7 +23,7 @@ from server.web import render
 
 router = APIRouter(include_in_schema=False)
 
-PAGE_SIZE = 100
+PAGE_SIZE = 50  # pilots per page: a school of 40 reads on one page
 STATUS_CHOICES = tuple(board.STATUS_LABELS.items())
 
 
@@ -46,26 +46,48 @@ def _board_filters(role: str | None, rule_id: str | None, status: str | None) ->
     }
 
 
+def _grid(db, day: date, filters: dict) -> tuple[list, list[board.GridRow]]:
+    """The board's columns (rules that apply to someone shown) and its rows, one per pilot."""
+    rows = board.board(db, as_of=day, role=filters["role"], rule_id=filters["rule_id"])
+    lines = board.grid(rows, status=filters["status"])
+    used = {rule_id for line in lines for rule_id in line.cells}
+    return [rule for rule in rules_service.list_rules(db) if rule.id in used], lines
+
+
+def _rule_words(db, rules) -> dict[int, str]:
+    """Each rule in full, for the column heading's "what this rule asks"."""
+    names = rules_service.type_names(db)
+    out = {}
+    for rule in rules:
+        many, one = rules_service.describe(rule, names)
+        out[rule.id] = (f"At least {rule.min_count} {one if rule.min_count == 1 else many} in "
+                        f"{rules_service.window_words(rule)}; warning {rule.warn_days} "
+                        f"day{'' if rule.warn_days == 1 else 's'} ahead.")
+    return out
+
+
 @router.get("/currency", name="readiness_board")
 def readiness_board(request: Request, db: DbSession, person: PageUser, as_of: str | None = None,
                     role: str | None = None, rule_id: str | None = None, status: str | None = None,
                     page: int = Query(default=1, ge=1), show: str | None = None):
-    """Every active pilot against every rule that applies, soonest trouble first."""
+    """One row per active pilot, one column per rule, soonest trouble first."""
     require_role(person, "chief_pilot", "admin")
     day, message = _as_of(db, as_of)
     filters = _board_filters(role, rule_id, status)
-    rows = board.board(db, as_of=day, **filters)
+    columns, lines = _grid(db, day, filters)
     counts = {key: 0 for key in board.STATUS_LABELS}
-    for row in rows:
-        counts[row.status] += 1
+    for line in lines:
+        for cell in line.cells.values():
+            counts[cell.status] += 1
     show_all = show == "all"
-    pages = max(1, -(-len(rows) // PAGE_SIZE))
+    pages = max(1, -(-len(lines) // PAGE_SIZE))
     page = min(page, pages)
-    shown = rows if show_all else rows[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
+    shown = lines if show_all else lines[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
     query = {"as_of": day.isoformat(), **{k: v for k, v in filters.items() if v is not None}}
     return render(request, "currency/board.html", {
-        "person": person, "rows": shown, "total": len(rows), "counts": counts, "as_of": day, "message": message,
-        "as_of_words": format_date(day),
+        "person": person, "lines": shown, "total": len(lines), "counts": counts, "as_of": day, "message": message,
+        "as_of_words": format_date(day), "columns": columns, "rule_words": _rule_words(db, columns),
+        "short_name": board.short_rule_name, "cell_words": board.cell_words,
         "filters": filters, "rules": rules_service.list_rules(db), "roles": ROLES, "statuses": STATUS_CHOICES,
         "page": page, "pages": pages, "show_all": show_all, "query": query,
         "first_index": 0 if show_all else (page - 1) * PAGE_SIZE,
@@ -75,14 +97,14 @@ def readiness_board(request: Request, db: DbSession, person: PageUser, as_of: st
 @router.get("/currency/board.csv", name="readiness_board_csv")
 def readiness_board_csv(db: DbSession, person: PageUser, as_of: str | None = None, role: str | None = None,
                         rule_id: str | None = None, status: str | None = None):
-    """The board as shown (same filters, every page), for a spreadsheet."""
+    """Every cell of the board as shown (same filters, every page), one line per pilot and rule."""
     require_role(person, "chief_pilot", "admin")
     day, _ = _as_of(db, as_of)
-    rows = board.board(db, as_of=day, **_board_filters(role, rule_id, status))
+    columns, lines = _grid(db, day, _board_filters(role, rule_id, status))
     out = io.StringIO()
     writer = csv.writer(out)
     writer.writerow(board.CSV_HEADER)
-    writer.writerows(row.csv_row() for row in rows)
+    writer.writerows(line.cells[rule.id].csv_row() for line in lines for rule in columns if rule.id in line.cells)
     # A byte-order mark lets common spreadsheet programs read the file as UTF-8.
     return Response("\ufeff" + out.getvalue(), media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
