@@ -319,9 +319,13 @@ async def sortie_sign(sortie_id: int, request: Request, db: DbSession, person: P
 
 
 @router.post("/sorties/{sortie_id}/acknowledge", name="sortie_acknowledge")
-def sortie_acknowledge(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+async def sortie_acknowledge(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    """The pilot acknowledges; from the progress file's waiting list they go back there."""
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
     logbook.acknowledge_sortie(db, actor=person, sortie=sortie)
+    if (await request.form()).get("back") == "progress":
+        return RedirectResponse(str(request.url_for("progress_file", pilot_id=sortie.pilot_id)) + "#waiting-h",
+                                status_code=303)
     return RedirectResponse(request.url_for("sortie_sheet", sortie_id=sortie.id), status_code=303)
 
 

@@ -3,6 +3,7 @@ from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
 from server.deps import DbSession, PageUser
+from server.logbook import service as logbook
 from server.people import service as people
 from server.people.models import Person
 from server.progress import file as progress_file
@@ -10,6 +11,8 @@ from server.training import programs
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
+
+WAITING_SHOWN = 20  # records waiting for the pilot's acknowledgement, newest first
 
 
 @router.get("/progress", name="progress_index")
@@ -26,8 +29,11 @@ def file_context(db, person: Person, pilot_id: int, kind: str | None = None) -> 
     """What the progress file template needs, including which sign-offs the viewer may give."""
     built = progress_file.build(db, viewer=person, pilot_id=pilot_id, selected_key=kind)
     enrolment = built.program.enrolment if built.program else None
+    waiting = logbook.list_sorties(db, viewer=person, pilot_id=pilot_id, state="signed", limit=WAITING_SHOWN + 1)
     return {
         "person": person, "file": built,
+        "waiting": waiting[:WAITING_SHOWN], "more_waiting": len(waiting) > WAITING_SHOWN,
+        "can_acknowledge": person.id == pilot_id,
         "usual_instructor": db.get(Person, enrolment.instructor_id) if enrolment and enrolment.instructor_id else None,
         "can_confirm": person.has_role("instructor", "chief_pilot") and person.id != pilot_id,
         "can_check": enrolment is not None and programs.may_check(person, enrolment),
