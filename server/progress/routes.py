@@ -12,7 +12,7 @@ from server.web import render
 
 router = APIRouter(include_in_schema=False)
 
-WAITING_SHOWN = 20  # records waiting for the pilot's acknowledgement, newest first
+WAITING_SHOWN = 5  # the newest records waiting for the pilot's acknowledgement; the rest a link away
 
 
 @router.get("/progress", name="progress_index")
