@@ -51,6 +51,7 @@ def test_a_chief_pilot_adds_a_student_and_enrols_them(page, world, db, chief_pro
     assert axe_violations(page, axe_path) == []
 
     page.get_by_role("button", name="Sign out").tap()
+    page.wait_for_url("**/signin")
     sign_in(page, "nia@school.example", "first-password-9")
     page.get_by_role("navigation", name="Main").get_by_role("link", name="Progress").tap()
     expect(page.get_by_text("Private syllabus (walk)").first).to_be_visible()
@@ -78,6 +79,27 @@ def test_aircraft_and_sites_pages(page, world, axe_path):
     page.get_by_role("link", name="Edit Heathfield pad (walk)").tap()
     screenshot(page, "setup-site-edit")
     assert axe_violations(page, axe_path) == []
+
+
+def test_standards_table_and_type_page_fit_the_tablet(page, app, world, db, axe_path):
+    from fastapi.testclient import TestClient
+
+    from server.people import service as people
+    from server.people.models import Person
+
+    with app.state.sessions() as session:
+        token = people.issue_token(session, person=session.get(Person, world.chief.id))
+        session.commit()
+    client = TestClient(app, headers={"Authorization": f"Bearer {token}"})
+    for name, level in (("Private autorotation standard (walk)", "private"), ("Recurrent standard (walk)", "recurrent")):
+        assert client.post("/api/v1/standards", json={"name": name, "level": level}).status_code == 201
+    sign_in(page, world.chief.email)
     page.goto("/setup/standards")
+    expect(page.get_by_role("rowheader", name="Recurrent standard (walk)")).to_be_visible()
     assert fits_the_width(page), "the standards table runs off the right edge"
     screenshot(page, "setup-standards")
+    assert axe_violations(page, axe_path) == []
+    page.goto(f"/setup/types/{world.helicopter.id}")
+    assert fits_the_width(page)
+    screenshot(page, "setup-type")
+    assert axe_violations(page, axe_path) == []
