@@ -10,30 +10,30 @@ from server.config import PROJECT_ROOT, Settings, get_settings
 from server.currency import api as currency_api
 from server.currency import routes as currency_routes
 from server.db import make_engine, make_session_factory
-from server.deps import SignInRequired
 from server.errors import FlarebookError
-from server.head import HeadAsGet
 from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
 from server.fleet import setup_routes as fleet_setup_routes
+from server.head import HeadAsGet
 from server.logbook import api as logbook_api
+from server.logbook import history_routes, people_api as visible_people_api, type_page_routes
 from server.logbook import routes as logbook_routes
 from server.openapi_errors import describe_errors
 from server.people import api as people_api
 from server.people import routes as people_routes
-from server.people import setup_routes as people_setup_routes
+from server.people.deps import SignInRequired
 from server.progress import api as progress_api
+from server.progress import program_api, program_routes
 from server.progress import routes as progress_routes
+from server.records.refusals import record_refusal
 from server.safety import api as safety_api
 from server.safety import routes as safety_routes
-from server.training import api as training_api
-from server.training import routes as training_routes
-from server.records import routes as records_routes
-from server.records.refusals import record_refusal
-from server.records.write_queue import WriterQueue
 from server.security import SecurityHeaders
+from server.training import api as training_api
+from server.training import people_routes as people_setup_routes
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
+from server.write_queue import WriterQueue
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
@@ -51,26 +51,27 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.engine = make_engine(settings.database_url)
     app.state.sessions = make_session_factory(app.state.engine)
 
-    app.add_middleware(WriterQueue)  # writing requests take turns: see server/records/write_queue.py
+    app.add_middleware(WriterQueue)  # writing requests take turns: see server/write_queue.py
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.add_middleware(HeadAsGet)  # outermost: the GET's headers, Content-Length included, without the body
     app.add_api_route("/favicon.ico", _favicon, include_in_schema=False)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
-    for module in (people_api, fleet_api, logbook_api):
+    for module in (people_api, visible_people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
     for module in (people_routes, logbook_routes):
         app.include_router(module.router)
     app.include_router(progress_api.router, prefix="/api/v1")
     app.include_router(training_api.router, prefix="/api/v1")
+    app.include_router(program_api.router, prefix="/api/v1")
     app.include_router(progress_routes.router)
-    app.include_router(training_routes.router)
+    app.include_router(program_routes.router)
     app.include_router(safety_api.router, prefix="/api/v1")
     app.include_router(safety_routes.router)
     app.include_router(standards_api.router, prefix="/api/v1")
-    for module in (fleet_routes, fleet_setup_routes, people_setup_routes, standards_routes):
+    for module in (fleet_routes, fleet_setup_routes, type_page_routes, people_setup_routes, standards_routes):
         app.include_router(module.router)
-    app.include_router(records_routes.router)
+    app.include_router(history_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

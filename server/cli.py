@@ -8,9 +8,11 @@ from server.config import get_settings
 from server.db import make_engine, make_session_factory, transaction
 from server.errors import FlarebookError
 from server.migrate import upgrade
+import server.models  # noqa: F401  (every table on Base, for export)
 from server.people import service as people
-from server.people.models import ROLES, Person
+from server.people.models import Person
 from server.records import commands as records_commands
+from server.vocabulary import ROLES
 
 
 def _sessions():

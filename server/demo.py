@@ -10,7 +10,6 @@ from datetime import UTC, date, datetime, time, timedelta
 from sqlalchemy.orm import Session
 
 from server.currency.models import CurrencyRule
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields, SortieCreate
@@ -60,7 +59,7 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     """Fill an empty database with the demo school; flights end on `today`."""
     today = today or datetime.now(UTC).date()
     rng = random.Random(seed)
-    school = fleet.school(session)
+    school = people.school(session)
     school.name, school.timezone, school.demo = SCHOOL_NAME, "UTC", True
 
     who = {}

@@ -2,11 +2,15 @@
 
 
 class FlarebookError(Exception):
+    """A refusal. `keep_record`: what the request wrote so far (the refusal's own audit entry, a
+    sign-in throttle row) is committed all the same, by the request's session dependency."""
+
     status_code = 400
 
-    def __init__(self, message: str):
+    def __init__(self, message: str, *, keep_record: bool = False):
         super().__init__(message)
         self.message = message
+        self.keep_record = keep_record
 
 
 class NotFound(FlarebookError):

@@ -1,10 +1,11 @@
 """Every table, imported in one place for Alembic and the app."""
 from server.currency.models import CalendarFeed, CurrencyRule
 from server.db import Base
-from server.fleet.models import Aircraft, HelicopterType, School, Site
-from server.logbook.models import Attempt, Sortie
-from server.people.models import ApiToken, Person, PersonRole, SignInFailure, UserSession
-from server.records.models import AuditEvent, IdempotencyKey, Signature
+from server.fleet.models import Aircraft, HelicopterType, Site
+from server.idempotency import IdempotencyKey
+from server.logbook.models import Attempt, Signature, Sortie
+from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
+from server.records.models import AuditEvent
 from server.training.models import (
     Enrolment,
     Lesson,

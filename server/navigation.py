@@ -1,7 +1,8 @@
-"""The main navigation: which pages each role gets, and which one the current address belongs to."""
-from dataclasses import dataclass
+"""The main navigation: which pages each role gets, and which one the current address belongs to.
 
-from server.people.models import Person
+Beside the templates (below people in the layering), so it takes any person-like object with `has_role`.
+"""
+from dataclasses import dataclass
 
 
 @dataclass(frozen=True)
@@ -27,7 +28,7 @@ def _matches(prefix: str, path: str) -> bool:
     return path == prefix or path.startswith(prefix.rstrip("/") + "/") or (prefix.endswith("/") and path.startswith(prefix))
 
 
-def main_nav(person: Person, path: str) -> list[dict]:
+def main_nav(person, path: str) -> list[dict]:
     """The person's links, the one whose address is the longest match with `path` marked current."""
     items = [item for item in NAV if not item.roles or person.has_role(*item.roles)]
     best, best_length = None, -1

@@ -3,10 +3,10 @@ from fastapi import Request
 from fastapi.templating import Jinja2Templates
 from starlette.responses import HTMLResponse
 
+from server.compute.atmosphere import hpa_to_inhg
 from server.config import PROJECT_ROOT
 from server.navigation import main_nav
-from server.people.models import ROLE_LABELS
-from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+from server.vocabulary import MANEUVER_LABELS, ROLE_LABELS, TERMINATION_LABELS
 
 templates = Jinja2Templates(directory=str(PROJECT_ROOT / "templates"))
 
@@ -39,6 +39,7 @@ def _labelled(keys, labels: dict) -> str:
 
 templates.env.filters["num"] = _fmt
 templates.env.filters["labelled"] = _labelled
+templates.env.filters["inhg"] = hpa_to_inhg  # pressure units convert in one place, not in templates
 templates.env.globals.update(
     CAUTION=CAUTION, MANEUVER_LABELS=MANEUVER_LABELS, TERMINATION_LABELS=TERMINATION_LABELS,
     ROLE_LABELS=ROLE_LABELS, STATE_LABELS=STATE_LABELS, main_nav=main_nav,

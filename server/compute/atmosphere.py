@@ -56,6 +56,11 @@ def inhg_to_hpa(inhg: float) -> float:
     return inhg * HPA_PER_INHG
 
 
+def hpa_to_inhg(hpa: float) -> float:
+    """Convert an altimeter setting in hectopascals to inches of mercury (for showing it as entered)."""
+    return hpa / HPA_PER_INHG
+
+
 def pressure_altitude_ft(elevation_ft: float, altimeter_hpa: float) -> float:
     """Pressure altitude of a field from its elevation and altimeter setting (QNH)."""
     _check_range(elevation_ft, ELEVATION_RANGE_FT, "field elevation", "ft")

@@ -19,9 +19,11 @@ from server.currency.schemas import (
     RuleUpdate,
     Status,
 )
-from server.deps import ApiUser, DbSession, require_role
+from server.deps import DbSession
 from server.errors import Invalid, NotFound
+from server.logbook import access
 from server.people import service as people
+from server.people.deps import ApiUser, SetupApiUser
 from server.people.models import Person
 from server.people.schemas import Role
 
@@ -84,20 +86,19 @@ def delete_rule(rule_id: int, db: DbSession, person: ApiUser):
 @router.get("/people/{person_id}/currency", response_model=PersonCurrencyRead)
 def person_currency(person_id: int, db: DbSession, person: ApiUser, as_of: date | None = None):
     """The person's standing under every rule that applies to them: self, their instructors, chief pilots."""
-    if not people.can_view_pilot(db, viewer=person, pilot_id=person_id) or db.get(Person, person_id) is None:
+    if not access.can_view_pilot(db, viewer=person, pilot_id=person_id) or db.get(Person, person_id) is None:
         raise NotFound("No such person.")
-    as_of = as_of or board.school_today(db)
+    as_of = as_of or people.school_today(db)
     rows = board.person_standings(db, person_id=person_id, as_of=as_of)
     return PersonCurrencyRead(person_id=person_id, as_of=as_of, rules=[currency_read(r) for r in rows])
 
 
 # Named apart from the readiness board page, which url_for("readiness_board") must find.
 @router.get("/currency", response_model=BoardRead, name="readiness_board_api")
-def readiness_board(db: DbSession, person: ApiUser, as_of: date | None = None, role: Role | None = None,
+def readiness_board(db: DbSession, person: SetupApiUser, as_of: date | None = None, role: Role | None = None,
                     rule_id: int | None = None, status: Status | None = None):
     """Every active pilot against every rule that applies, soonest trouble first (chief pilots)."""
-    require_role(person, "chief_pilot", "admin")
-    as_of = as_of or board.school_today(db)
+    as_of = as_of or people.school_today(db)
     rows = board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status)
     # The rows come from our own evaluation, already in shape: serialise them once, without re-validating
     # thousands of them (the board of a large school).
@@ -130,7 +131,7 @@ def revoke_feed(feed_id: int, db: DbSession, person: ApiUser):
 def currency_feed(secret: str, db: DbSession, as_of: date | None = Query(default=None)):
     """The feed itself: the secret in the address is the credential, so no session is needed."""
     feed = feeds.feed_for_secret(db, secret)
-    as_of = as_of or board.school_today(db)
+    as_of = as_of or people.school_today(db)
     rows = feeds.feed_standings(db, feed, as_of=as_of)
     name = "Currency due dates" + ("" if feed.person_id is None else f": {db.get(Person, feed.person_id).name}")
     body = feeds.calendar_bytes(rows, name=name, made_at=feeds.utcnow())

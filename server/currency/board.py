@@ -1,8 +1,9 @@
 """The readiness board and each person's own currency: who stands where under which rule."""
+import csv
+import io
 from collections.abc import Sequence
 from dataclasses import dataclass
-from datetime import date, datetime, timedelta
-from zoneinfo import ZoneInfo
+from datetime import date, timedelta
 
 from sqlalchemy import select
 from sqlalchemy.orm import Session
@@ -11,12 +12,13 @@ from server.compute.currency import STATUS_RANK, format_date
 from server.currency import evaluation
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
-from server.fleet import service as fleet
-from server.people.models import ROLE_LABELS, Person, PersonRole
+from server.people.models import Person, PersonRole
+from server.vocabulary import ROLE_LABELS
 
 STATUS_LABELS = {"current": "Current", "due_soon": "Due soon", "lapsed": "Lapsed", "never": "Never done"}
 # Our own shapes, so a status never rests on colour alone.
 STATUS_SHAPES = {"current": "●", "due_soon": "◐", "lapsed": "✕", "never": "○"}
+PAGE_SIZE = 50  # pilots per page: a school of 40 reads on one page
 CSV_HEADER = ("Pilot", "Roles", "Rule", "Status", "Date", "Qualifying in window", "Needed", "What to do")
 
 
@@ -64,11 +66,6 @@ class Standing:
     def csv_row(self) -> tuple:
         return (self.name, self.role_words, self.rule_name, self.label, self.date_words,
                 self.qualifying_count, self.needed, self.remedy)
-
-
-def school_today(session: Session) -> date:
-    """Today's date at the school: currency counts the school's local dates."""
-    return datetime.now(ZoneInfo(fleet.school(session).timezone)).date()
 
 
 def _people(session: Session, person_ids: Sequence[int] | None) -> list[tuple[int, str, tuple[str, ...]]]:
@@ -184,3 +181,65 @@ def grid(rows: Sequence[Standing], *, status: str | None = None) -> list[GridRow
     found = [line for line in by_person.values() if status is None
              or any(cell.status == status for cell in line.cells.values())]
     return sorted(found, key=GridRow.sort_key)
+
+
+def board_grid(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,
+               status: str | None = None) -> tuple[list[CurrencyRule], list[GridRow]]:
+    """The board's columns (the rules that apply to someone shown) and its rows, one per pilot."""
+    lines = grid(board(session, as_of=as_of, role=role, rule_id=rule_id), status=status)
+    used = {rule_id for line in lines for rule_id in line.cells}
+    return [rule for rule in rules_service.list_rules(session) if rule.id in used], lines
+
+
+def rule_texts(session: Session, rules: Sequence[CurrencyRule]) -> dict[int, str]:
+    """Each rule in full, for the column heading's "what it asks"."""
+    names = rules_service.type_names(session)
+    out = {}
+    for rule in rules:
+        many, one = rules_service.describe(rule, names)
+        out[rule.id] = (f"At least {rule.min_count} {one if rule.min_count == 1 else many} in "
+                        f"{rules_service.window_words(rule)}; warning {rule.warn_days} "
+                        f"day{'' if rule.warn_days == 1 else 's'} ahead.")
+    return out
+
+
+def cells_of(lines: Sequence[GridRow], columns: Sequence[CurrencyRule]) -> list[Standing]:
+    """Every cell of the grid, pilot by pilot in the board's order, rule by rule in the columns' order."""
+    return [line.cells[rule.id] for line in lines for rule in columns if rule.id in line.cells]
+
+
+@dataclass(frozen=True)
+class BoardPage:
+    """One page of the board's pilots (or all of them), with the counts per status of every cell."""
+
+    rows: list[GridRow]
+    total: int
+    counts: dict[str, int]
+    page: int
+    pages: int
+    show_all: bool
+
+    @property
+    def first_index(self) -> int:
+        return 0 if self.show_all else (self.page - 1) * PAGE_SIZE
+
+
+def board_page(rows: list[GridRow], *, page: int, show_all: bool) -> BoardPage:
+    """The page asked for (a page past the end shows the last one)."""
+    counts = {key: 0 for key in STATUS_LABELS}
+    for row in rows:
+        for cell in row.cells.values():
+            counts[cell.status] += 1
+    pages = max(1, -(-len(rows) // PAGE_SIZE))
+    page = min(page, pages)
+    shown = rows if show_all else rows[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
+    return BoardPage(rows=shown, total=len(rows), counts=counts, page=page, pages=pages, show_all=show_all)
+
+
+def board_csv(rows: list[Standing]) -> str:
+    """The board as CSV text; a byte-order mark lets common spreadsheet programs read it as UTF-8."""
+    out = io.StringIO()
+    writer = csv.writer(out)
+    writer.writerow(CSV_HEADER)
+    writer.writerows(row.csv_row() for row in rows)
+    return "\ufeff" + out.getvalue()

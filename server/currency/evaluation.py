@@ -10,12 +10,13 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from datetime import date
 
-from sqlalchemy import and_, case, exists, false, func, not_, or_, select, true
-from sqlalchemy.orm import Session, aliased
+from sqlalchemy import and_, case, false, func, not_, or_, select, true
+from sqlalchemy.orm import Session
 
 from server.compute.currency import CurrencyStatus, status_from_summary, window_start
 from server.currency.models import CurrencyRule
 from server.fleet.models import Aircraft
+from server.logbook.counted import counted_sorties_clause
 from server.logbook.models import Attempt, Sortie
 
 
@@ -37,18 +38,8 @@ def _instructed():
 
 
 def counting_attempts_filter(as_of: date):
-    """Attempts that can count at all: the latest signed version of their sortie, not taken over, flown by as_of.
-
-    A signed sortie stops counting once a newer version of it is signed (only the newest version of a
-    record can be a draft, so one step along the chain is enough).
-    """
-    newer = aliased(Sortie)
-    return and_(
-        Sortie.state == "signed",
-        Attempt.takeover == false(),
-        Attempt.flown_on <= as_of,
-        ~exists().where(newer.supersedes_id == Sortie.id, newer.state == "signed"),
-    )
+    """Attempts that can count at all: of a counted sortie (`counted_sorties_clause`), not taken over, flown by as_of."""
+    return and_(counted_sorties_clause(), Attempt.takeover == false(), Attempt.flown_on <= as_of)
 
 
 def rule_condition(rule: CurrencyRule):

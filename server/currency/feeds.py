@@ -8,7 +8,7 @@ from sqlalchemy.orm import Session
 from server.currency import board
 from server.currency.models import CalendarFeed
 from server.errors import Forbidden, NotFound
-from server.people import service as people
+from server.logbook import access
 from server.people.models import Person
 from server.people.security import new_secret, sha256_hex
 from server.records import audit
@@ -60,7 +60,7 @@ def feed_for_secret(session: Session, secret: str) -> CalendarFeed:
         raise NotFound("No such calendar.")
     if feed.person_id is None and not owner.has_role("chief_pilot"):
         raise NotFound("No such calendar.")
-    if feed.person_id is not None and not people.can_view_pilot(session, viewer=owner, pilot_id=feed.person_id):
+    if feed.person_id is not None and not access.can_view_pilot(session, viewer=owner, pilot_id=feed.person_id):
         raise NotFound("No such calendar.")
     return feed
 

@@ -1,6 +1,4 @@
 """Pages: the readiness board and its CSV, currency rules, calendar links, a person's own currency."""
-import csv
-import io
 from datetime import date
 
 from fastapi import APIRouter, Query, Request
@@ -12,18 +10,19 @@ from server.currency import board, feeds
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
 from server.currency.schemas import RuleCreate
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
 from server.errors import Invalid, NotFound
 from server.fleet.models import HelicopterType
 from server.forms import validate
+from server.logbook import access
 from server.people import service as people
-from server.people.models import ROLE_LABELS, ROLES, Person
-from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+from server.people.deps import PageUser, SetupUser
+from server.people.models import Person
+from server.vocabulary import MANEUVER_LABELS, ROLES, ROLE_LABELS, TERMINATION_LABELS
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
 
-PAGE_SIZE = 50  # pilots per page: a school of 40 reads on one page
 STATUS_CHOICES = tuple(board.STATUS_LABELS.items())
 
 
@@ -33,8 +32,8 @@ def _as_of(db, raw: str | None) -> tuple[date, str | None]:
         try:
             return date.fromisoformat(raw), None
         except ValueError:
-            return board.school_today(db), f"“{raw}” is not a date; showing today instead."
-    return board.school_today(db), None
+            return people.school_today(db), f"“{raw}” is not a date; showing today instead."
+    return people.school_today(db), None
 
 
 def _board_filters(role: str | None, rule_id: str | None, status: str | None) -> dict:
@@ -46,79 +45,46 @@ def _board_filters(role: str | None, rule_id: str | None, status: str | None) ->
     }
 
 
-def _grid(db, day: date, filters: dict) -> tuple[list, list[board.GridRow]]:
-    """The board's columns (rules that apply to someone shown) and its rows, one per pilot."""
-    rows = board.board(db, as_of=day, role=filters["role"], rule_id=filters["rule_id"])
-    lines = board.grid(rows, status=filters["status"])
-    used = {rule_id for line in lines for rule_id in line.cells}
-    return [rule for rule in rules_service.list_rules(db) if rule.id in used], lines
-
-
-def _rule_words(db, rules) -> dict[int, str]:
-    """Each rule in full, for the column heading's "what this rule asks"."""
-    names = rules_service.type_names(db)
-    out = {}
-    for rule in rules:
-        many, one = rules_service.describe(rule, names)
-        out[rule.id] = (f"At least {rule.min_count} {one if rule.min_count == 1 else many} in "
-                        f"{rules_service.window_words(rule)}; warning {rule.warn_days} "
-                        f"day{'' if rule.warn_days == 1 else 's'} ahead.")
-    return out
-
-
 @router.get("/currency", name="readiness_board")
-def readiness_board(request: Request, db: DbSession, person: PageUser, as_of: str | None = None,
+def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: str | None = None,
                     role: str | None = None, rule_id: str | None = None, status: str | None = None,
                     page: int = Query(default=1, ge=1), show: str | None = None):
     """One row per active pilot, one column per rule, soonest trouble first."""
-    require_role(person, "chief_pilot", "admin")
     day, message = _as_of(db, as_of)
     filters = _board_filters(role, rule_id, status)
-    columns, lines = _grid(db, day, filters)
-    counts = {key: 0 for key in board.STATUS_LABELS}
-    for line in lines:
-        for cell in line.cells.values():
-            counts[cell.status] += 1
-    show_all = show == "all"
-    pages = max(1, -(-len(lines) // PAGE_SIZE))
-    page = min(page, pages)
-    shown = lines if show_all else lines[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
+    columns, lines = board.board_grid(db, as_of=day, **filters)
+    shown = board.board_page(lines, page=page, show_all=show == "all")
     query = {"as_of": day.isoformat(), **{k: v for k, v in filters.items() if v is not None}}
     return render(request, "currency/board.html", {
-        "person": person, "lines": shown, "total": len(lines), "counts": counts, "as_of": day, "message": message,
-        "as_of_words": format_date(day), "columns": columns, "rule_words": _rule_words(db, columns),
-        "short_name": board.short_rule_name, "cell_words": board.cell_words,
+        "person": person, "lines": shown.rows, "total": shown.total, "counts": shown.counts, "as_of": day,
+        "message": message, "as_of_words": format_date(day), "columns": columns,
+        "rule_words": board.rule_texts(db, columns), "short_name": board.short_rule_name,
+        "cell_words": board.cell_words,
         "filters": filters, "rules": rules_service.list_rules(db), "roles": ROLES, "statuses": STATUS_CHOICES,
-        "page": page, "pages": pages, "show_all": show_all, "query": query,
-        "first_index": 0 if show_all else (page - 1) * PAGE_SIZE,
+        "page": shown.page, "pages": shown.pages, "show_all": shown.show_all, "query": query,
+        "first_index": shown.first_index,
     }, fragment="currency/_board.html")
 
 
 @router.get("/currency/board.csv", name="readiness_board_csv")
-def readiness_board_csv(db: DbSession, person: PageUser, as_of: str | None = None, role: str | None = None,
+def readiness_board_csv(db: DbSession, person: SetupUser, as_of: str | None = None, role: str | None = None,
                         rule_id: str | None = None, status: str | None = None):
     """Every cell of the board as shown (same filters, every page), one line per pilot and rule."""
-    require_role(person, "chief_pilot", "admin")
     day, _ = _as_of(db, as_of)
-    columns, lines = _grid(db, day, _board_filters(role, rule_id, status))
-    out = io.StringIO()
-    writer = csv.writer(out)
-    writer.writerow(board.CSV_HEADER)
-    writer.writerows(line.cells[rule.id].csv_row() for line in lines for rule in columns if rule.id in line.cells)
-    # A byte-order mark lets common spreadsheet programs read the file as UTF-8.
-    return Response("\ufeff" + out.getvalue(), media_type="text/csv; charset=utf-8", headers={
+    columns, lines = board.board_grid(db, as_of=day, **_board_filters(role, rule_id, status))
+    return Response(board.board_csv(board.cells_of(lines, columns)), media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
 
 
 @router.get("/currency/people/{person_id}", name="person_currency_page")
 def person_currency_page(request: Request, db: DbSession, person: PageUser, person_id: int):
     """One person's own currency: a page, or the fragment a home page or progress file loads."""
-    if not people.can_view_pilot(db, viewer=person, pilot_id=person_id):
+    if not access.can_view_pilot(db, viewer=person, pilot_id=person_id):
         raise NotFound("No such person.")
     subject = db.get(Person, person_id)
     if subject is None:
         raise NotFound("No such person.")
-    day = board.school_today(db)
+    day = people.school_today(db)
     rows = board.person_standings(db, person_id=person_id, as_of=day)
     return render(request, "currency/person.html", {
         "person": person, "subject": subject, "own_currency": rows, "as_of": day, "as_of_words": format_date(day),
@@ -195,8 +161,7 @@ NEW_RULE_DEFAULTS = {"window": 90, "window_unit": "days", "min_count": 1, "warn_
 
 
 @router.get("/currency/rules", name="currency_rules")
-def currency_rules(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot", "admin")
+def currency_rules(request: Request, db: DbSession, person: SetupUser):
     return _rules_page(request, db, person, values=NEW_RULE_DEFAULTS, errors={}, message=None)
 
 
@@ -211,8 +176,7 @@ async def _submitted_rule(request: Request, db) -> tuple[RuleCreate | None, dict
 
 
 @router.post("/currency/rules", name="currency_rule_create")
-async def currency_rule_create(request: Request, db: DbSession, person: PageUser):
-    require_role(person, "chief_pilot", "admin")
+async def currency_rule_create(request: Request, db: DbSession, person: SetupUser):
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
         try:
@@ -226,8 +190,7 @@ async def currency_rule_create(request: Request, db: DbSession, person: PageUser
 
 
 @router.get("/currency/rules/{rule_id}", name="currency_rule_edit")
-def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+def currency_rule_edit(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rule = rules_service.get_rule(db, rule_id=rule_id)
     return render(request, "currency/rule_edit.html", {
         "person": person, "rule": rule, "values": _rule_values_for_form(rule), "errors": {}, "message": None,
@@ -236,8 +199,7 @@ def currency_rule_edit(request: Request, db: DbSession, person: PageUser, rule_i
 
 
 @router.post("/currency/rules/{rule_id}", name="currency_rule_update")
-async def currency_rule_update(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+async def currency_rule_update(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rule = rules_service.get_rule(db, rule_id=rule_id)
     data, errors, shown, message = await _submitted_rule(request, db)
     if data is not None:
@@ -254,8 +216,7 @@ async def currency_rule_update(request: Request, db: DbSession, person: PageUser
 
 
 @router.post("/currency/rules/{rule_id}/delete", name="currency_rule_delete")
-def currency_rule_delete(request: Request, db: DbSession, person: PageUser, rule_id: int):
-    require_role(person, "chief_pilot", "admin")
+def currency_rule_delete(request: Request, db: DbSession, person: SetupUser, rule_id: int):
     rules_service.delete_rule(db, actor=person, rule=rules_service.get_rule(db, rule_id=rule_id))
     return RedirectResponse(request.url_for("currency_rules"), status_code=303)
 

@@ -4,8 +4,8 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
-from server.logbook.schemas import Maneuver, Termination
 from server.people.schemas import Role
+from server.vocabulary import Maneuver, Termination
 
 Status = Literal["current", "due_soon", "lapsed", "never"]
 

@@ -1,9 +1,8 @@
 """JSON API: helicopter types, aircraft and sites."""
 from fastapi import APIRouter
 
-from server.deps import ApiUser, DbSession, require_role
+from server.deps import DbSession
 from server.fleet import service as fleet
-from server.records.idempotency import IdempotentCreate
 from server.fleet.schemas import (
     AircraftCreate,
     AircraftRead,
@@ -13,6 +12,7 @@ from server.fleet.schemas import (
     TypeRead,
     TypeUpdate,
 )
+from server.people.deps import ApiUser, IdempotentCreate, SetupApiUser
 
 router = APIRouter(tags=["fleet"])
 
@@ -23,9 +23,8 @@ def list_types(db: DbSession, person: ApiUser):
 
 
 @router.post("/types", response_model=TypeRead, status_code=201)
-def create_type(data: TypeCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
-    require_role(person, "chief_pilot", "admin")
-    return once.run(lambda: fleet.type_read(fleet.create_type(db, data=data, actor_id=person.id)), status_code=201)
+def create_type(data: TypeCreate, db: DbSession, person: SetupApiUser, once: IdempotentCreate):
+    return once.run(lambda: fleet.type_read(fleet.create_type(db, data=data, actor=person)), status_code=201)
 
 
 @router.get("/types/{type_id}", response_model=TypeRead)
@@ -34,11 +33,10 @@ def get_type(type_id: int, db: DbSession, person: ApiUser):
 
 
 @router.patch("/types/{type_id}", response_model=TypeRead)
-def update_type(type_id: int, data: TypeUpdate, db: DbSession, person: ApiUser):
+def update_type(type_id: int, data: TypeUpdate, db: DbSession, person: SetupApiUser):
     """Change some fields of a helicopter type; attempts already scored keep their figures."""
-    require_role(person, "chief_pilot", "admin")
     row = fleet.get_type(db, type_id)
-    return fleet.type_read(fleet.change_type(db, row=row, changes=data, actor_id=person.id))
+    return fleet.type_read(fleet.change_type(db, row=row, changes=data, actor=person))
 
 
 @router.get("/aircraft", response_model=list[AircraftRead])
@@ -47,9 +45,8 @@ def list_aircraft(db: DbSession, person: ApiUser):
 
 
 @router.post("/aircraft", response_model=AircraftRead, status_code=201)
-def create_aircraft(data: AircraftCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
-    require_role(person, "chief_pilot", "admin")
-    return once.run(lambda: fleet.aircraft_read(fleet.create_aircraft(db, data=data, actor_id=person.id)),
+def create_aircraft(data: AircraftCreate, db: DbSession, person: SetupApiUser, once: IdempotentCreate):
+    return once.run(lambda: fleet.aircraft_read(fleet.create_aircraft(db, data=data, actor=person)),
                     status_code=201)
 
 
@@ -59,7 +56,6 @@ def list_sites(db: DbSession, person: ApiUser):
 
 
 @router.post("/sites", response_model=SiteRead, status_code=201)
-def create_site(data: SiteCreate, db: DbSession, person: ApiUser, once: IdempotentCreate):
-    require_role(person, "chief_pilot", "admin")
-    return once.run(lambda: SiteRead.model_validate(fleet.create_site(db, data=data, actor_id=person.id),
+def create_site(data: SiteCreate, db: DbSession, person: SetupApiUser, once: IdempotentCreate):
+    return once.run(lambda: SiteRead.model_validate(fleet.create_site(db, data=data, actor=person),
                                                     from_attributes=True), status_code=201)

@@ -1,20 +1,8 @@
-"""Tables for the school, helicopter types, aircraft and sites."""
+"""Tables for helicopter types, aircraft and sites."""
 from sqlalchemy import JSON, Boolean, Float, ForeignKey, Integer, String
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from server.db import Base
-
-
-class School(Base):
-    """The one school this database serves; its time zone decides which local date a flight counts on."""
-
-    __tablename__ = "school"
-
-    id: Mapped[int] = mapped_column(primary_key=True)
-    name: Mapped[str] = mapped_column(String(120), default="Flight school")
-    timezone: Mapped[str] = mapped_column(String(64), default="UTC")
-    # The invented demo school prints its sign-ins on the sign-in page; a real school never does.
-    demo: Mapped[bool] = mapped_column(Boolean, default=False)
 
 
 class HelicopterType(Base):

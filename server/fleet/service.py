@@ -6,19 +6,10 @@ from sqlalchemy.orm import Session
 from server.compute.hv import in_avoid_region
 from server.errors import Conflict, Invalid, NotFound
 from server.fleet.hvchart import Entry
-from server.fleet.models import Aircraft, HelicopterType, School, Site
+from server.fleet.models import Aircraft, HelicopterType, Site
 from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate, TypeUpdate
+from server.people.models import Person
 from server.records import audit
-
-
-def school(session: Session) -> School:
-    """The school row, made on first use (a new database starts in UTC)."""
-    row = session.get(School, 1)
-    if row is None:
-        row = School(id=1, name="Flight school", timezone="UTC")
-        session.add(row)
-        session.flush()
-    return row
 
 
 def list_types(session: Session) -> list[HelicopterType]:
@@ -39,18 +30,18 @@ def type_fields(data: TypeCreate) -> dict:
     return fields
 
 
-def create_type(session: Session, *, data: TypeCreate, actor_id: int) -> HelicopterType:
+def create_type(session: Session, *, data: TypeCreate, actor: Person) -> HelicopterType:
     if session.scalar(select(HelicopterType.id).where(HelicopterType.designation == data.designation)):
         raise Conflict(f"A helicopter type called {data.designation} exists already.")
     row = HelicopterType(**type_fields(data))
     session.add(row)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="helicopter_type",
+    audit.append(session, actor_id=actor.id, action="create", entity="helicopter_type",
                  entity_id=row.id, after=data.model_dump(mode="json"))
     return row
 
 
-def update_type(session: Session, *, row: HelicopterType, data: TypeCreate, actor_id: int) -> HelicopterType:
+def update_type(session: Session, *, row: HelicopterType, data: TypeCreate, actor: Person) -> HelicopterType:
     clash = session.scalar(select(HelicopterType.id).where(HelicopterType.designation == data.designation,
                                                            HelicopterType.id != row.id))
     if clash:
@@ -59,12 +50,12 @@ def update_type(session: Session, *, row: HelicopterType, data: TypeCreate, acto
     for key, value in type_fields(data).items():
         setattr(row, key, value)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="edit", entity="helicopter_type", entity_id=row.id,
+    audit.append(session, actor_id=actor.id, action="edit", entity="helicopter_type", entity_id=row.id,
                  before=before, after=type_read(row))
     return row
 
 
-def change_type(session: Session, *, row: HelicopterType, changes: TypeUpdate, actor_id: int) -> HelicopterType:
+def change_type(session: Session, *, row: HelicopterType, changes: TypeUpdate, actor: Person) -> HelicopterType:
     """Apply the fields sent to a type; a field sent as null clears it only where it is optional."""
     merged = {key: value for key, value in type_read(row).items() if key != "id"}
     merged |= changes.model_dump(exclude_unset=True)
@@ -73,7 +64,7 @@ def change_type(session: Session, *, row: HelicopterType, changes: TypeUpdate, a
     except ValidationError as error:
         raise Invalid("; ".join(f"{'.'.join(map(str, e['loc'])) or 'type'}: {e['msg'].removeprefix('Value error, ')}"
                                 for e in error.errors())) from None
-    return update_type(session, row=row, data=data, actor_id=actor_id)
+    return update_type(session, row=row, data=data, actor=actor)
 
 
 def hv_entries(*, helicopter: HelicopterType, attempts) -> list[Entry]:
@@ -109,7 +100,7 @@ def get_aircraft(session: Session, aircraft_id: int) -> Aircraft:
     return row
 
 
-def create_aircraft(session: Session, *, data: AircraftCreate, actor_id: int) -> Aircraft:
+def create_aircraft(session: Session, *, data: AircraftCreate, actor: Person) -> Aircraft:
     registration = data.registration.strip().upper()
     if session.get(HelicopterType, data.type_id) is None:
         raise Invalid("type_id does not name a helicopter type.")
@@ -118,7 +109,7 @@ def create_aircraft(session: Session, *, data: AircraftCreate, actor_id: int) ->
     row = Aircraft(registration=registration, type_id=data.type_id)
     session.add(row)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="aircraft", entity_id=row.id,
+    audit.append(session, actor_id=actor.id, action="create", entity="aircraft", entity_id=row.id,
                  after={"registration": registration, "type_id": data.type_id})
     return row
 
@@ -139,13 +130,13 @@ def get_site(session: Session, site_id: int) -> Site:
     return row
 
 
-def create_site(session: Session, *, data: SiteCreate, actor_id: int) -> Site:
+def create_site(session: Session, *, data: SiteCreate, actor: Person) -> Site:
     if session.scalar(select(Site.id).where(Site.name == data.name)):
         raise Conflict(f"A site called {data.name} exists already.")
     row = Site(**data.model_dump())
     session.add(row)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="site", entity_id=row.id,
+    audit.append(session, actor_id=actor.id, action="create", entity="site", entity_id=row.id,
                  after=data.model_dump())
     return row
 

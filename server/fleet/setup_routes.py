@@ -4,11 +4,12 @@ import re
 from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
-from server.deps import DbSession, SetupUser
+from server.deps import DbSession
 from server.errors import FlarebookError
 from server.fleet import service as fleet
 from server.fleet.schemas import AircraftCreate, SiteCreate
 from server.forms import blank_to_none, plain, validate
+from server.people.deps import SetupUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)

@@ -3,13 +3,12 @@ from fastapi import APIRouter, Query, Response
 
 from pydantic import ValidationError
 
-from server.compute.atmosphere import HPA_PER_INHG
-from server.deps import ApiUser, DbSession
+from server.compute.atmosphere import hpa_to_inhg
+from server.deps import DbSession
 from server.errors import Invalid
 from server.logbook import derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
-from server.records.idempotency import IdempotentCreate
 from server.logbook.schemas import (
     KG_PER_LB,
     AmendRequest,
@@ -24,6 +23,7 @@ from server.logbook.schemas import (
     SortieRead,
     SortieUpdate,
 )
+from server.people.deps import ApiUser, IdempotentCreate
 
 router = APIRouter(tags=["logbook"])
 
@@ -49,7 +49,7 @@ def sortie_read(db, sortie: Sortie) -> SortieRead:
         state=logbook.display_state(db, sortie), flown_at=sortie.flown_at, aircraft_id=sortie.aircraft_id,
         instructor_id=sortie.instructor_id, pilot_id=sortie.pilot_id, site_id=sortie.site_id,
         oat_c=sortie.oat_c, altimeter_hpa=sortie.altimeter_hpa,
-        altimeter_inhg=round(sortie.altimeter_hpa / HPA_PER_INHG, 2) if sortie.altimeter_hpa else None,
+        altimeter_inhg=round(hpa_to_inhg(sortie.altimeter_hpa), 2) if sortie.altimeter_hpa else None,
         wind_dir_deg=sortie.wind_dir_deg, wind_kt=sortie.wind_kt, gust_kt=sortie.gust_kt, metar=sortie.metar,
         takeoff_weight_lb=sortie.takeoff_weight_lb,
         takeoff_weight_kg=round(sortie.takeoff_weight_lb * KG_PER_LB, 1) if sortie.takeoff_weight_lb else None,
@@ -101,11 +101,7 @@ def update_sortie(sortie_id: int, data: SortieUpdate, db: DbSession, person: Api
 @router.post("/sorties/{sortie_id}/sign", response_model=SortieRead)
 def sign_sortie(sortie_id: int, data: SignRequest, db: DbSession, person: ApiUser):
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
-    try:
-        logbook.sign_sortie(db, actor=person, sortie=sortie, password=data.password)
-    except Invalid:
-        db.commit()  # the refused signing stays in the audit chain, as on the sortie sheet
-        raise
+    logbook.sign_sortie(db, actor=person, sortie=sortie, password=data.password)
     return sortie_read(db, sortie)
 
 

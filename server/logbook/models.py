@@ -1,4 +1,4 @@
-"""Tables for sorties and attempts."""
+"""Tables for sorties, attempts and signatures."""
 from datetime import date, datetime
 
 from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, String, Text
@@ -110,3 +110,26 @@ class Attempt(Base):
     created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     sortie: Mapped[Sortie] = relationship(back_populates="attempts")
+
+
+MEANINGS = {
+    "instructor_certifies": (
+        "I certify that this sortie and its practice autorotations took place as recorded, "
+        "and that I observed and graded each one."
+    ),
+    "pilot_acknowledges": "I have read this signed record of my sortie.",
+}
+
+
+class Signature(Base):
+    """Who signed which version of a record, when, meaning what, over which content."""
+
+    __tablename__ = "signatures"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    sortie_id: Mapped[int] = mapped_column(ForeignKey("sorties.id"), index=True)
+    signer_id: Mapped[int] = mapped_column(ForeignKey("people.id"))
+    meaning: Mapped[str] = mapped_column(String(32))
+    statement: Mapped[str] = mapped_column(Text)
+    content_sha256: Mapped[str] = mapped_column(String(64))
+    signed_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)

@@ -5,18 +5,18 @@ from zoneinfo import ZoneInfo
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import HTMLResponse, RedirectResponse
 
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
 from server.errors import Invalid
 from server.fleet import service as fleet
 from server.fleet.models import Site
 from server.forms import blank_to_none, plain, validate
-from server.logbook import derive
+from server.logbook import access, derive
 from server.logbook import service as logbook
-from server.logbook.models import Attempt, Sortie
+from server.logbook.models import Attempt, MEANINGS, Sortie
 from server.logbook.schemas import AttemptFields, ConditionsRequest, SortieCreate
 from server.people import service as people
+from server.people.deps import PageUser, require_role
 from server.people.models import Person
-from server.records.models import MEANINGS
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -27,7 +27,7 @@ ATTEMPT_NAMES = tuple(AttemptFields.model_fields)
 
 
 def _timezone(db) -> ZoneInfo:
-    return ZoneInfo(fleet.school(db).timezone)
+    return people.school_zone(db)
 
 
 def _sortie_values(form) -> dict:
@@ -40,12 +40,12 @@ def _sortie_values(form) -> dict:
 
 
 def _form_choices(db, person: Person) -> dict:
-    pilots = [p for p in people.visible_people(db, viewer=person) if p.active]
+    pilots = [p for p in access.visible_people(db, viewer=person) if p.active]
     return {
         "pilots": [(p.id, p.name) for p in pilots],
         "aircraft": [(a.id, f"{a.registration} · {a.type.designation}") for a in fleet.list_aircraft(db) if a.active],
         "sites": [(s.id, f"{s.name} ({s.elevation_ft:,.0f} ft)") for s in fleet.list_sites(db) if s.active],
-        "timezone": fleet.school(db).timezone,
+        "timezone": people.school(db).timezone,
     }
 
 
@@ -187,7 +187,7 @@ async def conditions_preview(request: Request, db: DbSession, person: PageUser):
 
 def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
     newer = logbook.superseded_by(db, sortie)
-    is_editor = sortie.instructor_id == person.id or person.has_role("chief_pilot")
+    is_editor = logbook.may_edit_sortie(person=person, sortie=sortie)
     editable = sortie.state == "draft" and newer is None and is_editor
     versions = logbook.versions(db, sortie)
     version_signatures = {}
@@ -202,7 +202,7 @@ def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
     return {
         "person": person, "sortie": sortie, "newer": newer, "editable": editable,
         "is_instructor": sortie.instructor_id == person.id, "states": {sortie.id: state},
-        "local_time": sortie.flown_at.astimezone(_timezone(db)), "timezone": fleet.school(db).timezone,
+        "local_time": sortie.flown_at.astimezone(_timezone(db)), "timezone": people.school(db).timezone,
         "versions": versions, "version_signatures": version_signatures,
         "sign_statement": MEANINGS["instructor_certifies"],
         "can_amend": state in ("signed", "acknowledged") and is_editor,
@@ -280,8 +280,7 @@ def attempt_edit_form(attempt_id: int, request: Request, db: DbSession, person: 
 @router.get("/attempts/{attempt_id}", name="attempt_card")
 def attempt_card(attempt_id: int, request: Request, db: DbSession, person: PageUser):
     attempt = logbook.get_attempt(db, attempt_id=attempt_id, viewer=person)
-    editable = attempt.sortie.state == "draft" and (attempt.sortie.instructor_id == person.id
-                                                    or person.has_role("chief_pilot"))
+    editable = attempt.sortie.state == "draft" and logbook.may_edit_sortie(person=person, sortie=attempt.sortie)
     return render(request, "logbook/_attempt_card.html", {"a": attempt, "editable": editable})
 
 
@@ -310,7 +309,6 @@ async def sortie_sign(sortie_id: int, request: Request, db: DbSession, person: P
     try:
         logbook.sign_sortie(db, actor=person, sortie=sortie, password=str(form.get("password", "")))
     except Invalid as refusal:
-        db.commit()  # the refused attempt stays in the audit chain
         context = _sheet_context(db, person, sortie)
         context["message"] = refusal.message
         response = render(request, "logbook/sortie_sheet.html", context, status_code=422)
@@ -335,3 +333,13 @@ async def sortie_amend(sortie_id: int, request: Request, db: DbSession, person: 
     form = await request.form()
     amendment = logbook.amend_sortie(db, actor=person, sortie=sortie, reason=str(form.get("reason", "")))
     return RedirectResponse(request.url_for("sortie_sheet", sortie_id=amendment.id), status_code=303)
+
+
+@router.get("/")
+def home(request: Request, db: DbSession, person: PageUser):
+    """What each person needs first: recent sorties, and a button to start one for instructors."""
+    sorties = logbook.list_sorties(db, viewer=person, limit=15)
+    return render(request, "logbook/home.html", {
+        "person": person, "sorties": sorties,
+        "states": {s.id: logbook.display_state(db, s) for s in sorties},
+    })

@@ -8,8 +8,8 @@ from typing import Literal
 
 from pydantic import AwareDatetime, BaseModel, ConfigDict, Field, model_validator
 
-Maneuver = Literal["straight_in", "turn_180", "turn_360", "hovering"]
-Termination = Literal["power_recovery", "to_hover", "touchdown"]
+from server.vocabulary import Maneuver, Termination
+
 Grade = Literal["satisfactory", "unsatisfactory"]
 
 KG_PER_LB = 0.45359237  # exact, by definition of the international pound

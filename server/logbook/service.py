@@ -1,23 +1,20 @@
 """Sorties and attempts: create, edit while a draft, sign, acknowledge, amend."""
 import hashlib
 from datetime import UTC, date, datetime, time, timedelta
-from zoneinfo import ZoneInfo
 
 from sqlalchemy import func, select
 from sqlalchemy.orm import Session
 
 from server.compute.atmosphere import inhg_to_hpa
 from server.errors import Conflict, Forbidden, Invalid, NotFound
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, Site
-from server.logbook import derive
-from server.logbook.models import Attempt, Sortie
+from server.logbook import access, derive
+from server.logbook.models import Attempt, MEANINGS, Signature, Sortie
 from server.logbook.schemas import KG_PER_LB, AttemptFields, ConditionsRequest, SortieCreate, SortieUpdate
 from server.people import service as people
 from server.people.models import Person
 from server.people.security import verify_password
 from server.records import audit
-from server.records.models import MEANINGS, Signature
 from server.training.service import standard_for
 
 ATTEMPT_FIELDS = tuple(AttemptFields.model_fields)
@@ -42,7 +39,7 @@ def get_sortie(session: Session, *, sortie_id: int, viewer: Person) -> Sortie:
 
 
 def may_view(session: Session, *, viewer: Person, sortie: Sortie) -> bool:
-    return sortie.instructor_id == viewer.id or people.can_view_pilot(session, viewer=viewer,
+    return sortie.instructor_id == viewer.id or access.can_view_pilot(session, viewer=viewer,
                                                                       pilot_id=sortie.pilot_id)
 
 
@@ -82,7 +79,7 @@ def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = Non
         query = query.where(Sortie.state == ("draft" if state == "draft" else "signed"))
         if state != "draft":
             query = query.where(acknowledged if state == "acknowledged" else ~acknowledged)
-    zone = ZoneInfo(fleet.school(session).timezone)
+    zone = people.school_zone(session)
     if flown_from is not None:
         query = query.where(Sortie.flown_at >= datetime.combine(flown_from, time.min, tzinfo=zone).astimezone(UTC))
     if flown_to is not None:
@@ -91,7 +88,7 @@ def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = Non
     if not viewer.sees_everyone:
         ids = {viewer.id}
         if viewer.has_role("instructor"):
-            ids |= people.student_ids_of(session, viewer.id)
+            ids |= access.student_ids_of(session, viewer.id)
         query = query.where(Sortie.pilot_id.in_(ids) | (Sortie.instructor_id == viewer.id))
     return list(session.scalars(query.limit(limit).offset(offset)))
 
@@ -123,19 +120,18 @@ def display_state(session: Session, sortie: Sortie) -> str:
     return sortie.state
 
 
-def local_date(session: Session, moment: datetime):
-    return moment.astimezone(ZoneInfo(fleet.school(session).timezone)).date()
-
-
-# ---- writing a draft -----------------------------------------------------------------------
-
 def _require_draft(sortie: Sortie) -> None:
     if sortie.state != "draft":
         raise Conflict("This sortie is signed and cannot be changed. Make an amendment with a reason instead.")
 
 
+def may_edit_sortie(*, person: Person, sortie: Sortie) -> bool:
+    """The sortie's instructor or a chief pilot may change it (while it is a draft)."""
+    return sortie.instructor_id == person.id or person.has_role("chief_pilot")
+
+
 def _require_editor(session: Session, *, actor: Person, sortie: Sortie) -> None:
-    if not (sortie.instructor_id == actor.id or actor.has_role("chief_pilot")):
+    if not may_edit_sortie(person=actor, sortie=sortie):
         raise Forbidden("Only the sortie's instructor or a chief pilot can change it.")
 
 
@@ -221,7 +217,7 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
     session.expire(sortie, ["aircraft", "site"])
     derive.apply_conditions(sortie)
     for attempt in sortie.attempts:
-        attempt.flown_on = local_date(session, sortie.flown_at)
+        attempt.flown_on = people.local_date(session, sortie.flown_at)
         derive.score(attempt, sortie, standard_for(session, pilot_id=sortie.pilot_id, maneuver=attempt.maneuver))
     session.flush()
     audit.append(session, actor_id=actor.id, action="edit", entity="sortie", entity_id=sortie.id,
@@ -238,7 +234,7 @@ def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: Attemp
     sequence = (last or 0) + 1
     standard = standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver)
     attempt = Attempt(sortie=sortie, sequence=sequence, pilot_id=sortie.pilot_id,
-                      flown_on=local_date(session, sortie.flown_at), **data.model_dump())
+                      flown_on=people.local_date(session, sortie.flown_at), **data.model_dump())
     derive.score(attempt, sortie, standard)
     session.add(attempt)
     session.flush()
@@ -303,7 +299,7 @@ def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: st
     if not verify_password(actor.password_hash, password):
         audit.append(session, actor_id=actor.id, action="sign_refused", entity="sortie", entity_id=sortie.id,
                      reason="wrong password")
-        raise Invalid("That password is not right; the sortie stays unsigned.")
+        raise Invalid("That password is not right; the sortie stays unsigned.", keep_record=True)
     return record_instructor_signature(session, actor=actor, sortie=sortie)
 
 

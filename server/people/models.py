@@ -1,4 +1,4 @@
-"""Tables for people, their roles, sign-in sessions and personal API tokens."""
+"""Tables for the school, its people, their roles, sign-in sessions and personal API tokens."""
 from datetime import datetime
 
 from sqlalchemy import Boolean, ForeignKey, Integer, String
@@ -7,13 +7,16 @@ from sqlalchemy.orm import Mapped, mapped_column, relationship
 from server.db import Base
 from server.types import UTCDateTime, utcnow
 
-ROLES = ("student", "instructor", "chief_pilot", "admin")
-ROLE_LABELS = {
-    "student": "Student",
-    "instructor": "Instructor",
-    "chief_pilot": "Chief pilot",
-    "admin": "Administrator",
-}
+class School(Base):
+    """The one school this database serves; its time zone decides which local date a flight counts on."""
+
+    __tablename__ = "school"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    name: Mapped[str] = mapped_column(String(120), default="Flight school")
+    timezone: Mapped[str] = mapped_column(String(64), default="UTC")
+    # The invented demo school prints its sign-ins on the sign-in page; a real school never does.
+    demo: Mapped[bool] = mapped_column(Boolean, default=False)
 
 
 class Person(Base):

@@ -1,14 +1,13 @@
-"""Pages: sign-in, sign-out and each person's home page."""
+"""Pages: sign-in and sign-out."""
 from typing import Annotated
 
 from fastapi import APIRouter, Form, Request
 from fastapi.responses import RedirectResponse
 
-from server.deps import BrowserSession, DbSession, PageUser, check_csrf, cookie_name, secure_cookies
+from server.deps import DbSession, check_csrf, cookie_name, secure_cookies
 from server.errors import Unauthorized
-from server.fleet import service as fleet
-from server.logbook import service as logbook
 from server.people import service as people
+from server.people.deps import BrowserSession, PageUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -34,7 +33,7 @@ def signin_page(request: Request, db: DbSession, user_session: BrowserSession):
     if user_session is None:
         new_cookie, user_session = people.start_session(db, person=None)
         request.state.csrf_token = user_session.csrf_token
-    school = fleet.school(db)
+    school = people.school(db)
     response = render(request, "people/signin.html", {
         "demo_sign_ins": DEMO_SIGN_INS if school.demo else (), "demo_password": DEMO_PASSWORD,
         "school": school,
@@ -49,13 +48,12 @@ async def signin(request: Request, db: DbSession, user_session: BrowserSession,
                  email: Annotated[str, Form(max_length=254)], password: Annotated[str, Form(max_length=1000)]):
     if user_session is None:
         return RedirectResponse("/signin", status_code=303)
-    await check_csrf(request, user_session)
+    await check_csrf(request, user_session.csrf_token)
     client = request.client.host if request.client else ""
     try:
         person = people.authenticate(db, email=email, password=password, client=client)
     except Unauthorized as refusal:
-        db.commit()  # keep the refusal on record (throttle and audit) though the answer is an error
-        school = fleet.school(db)
+        school = people.school(db)
         return render(request, "people/signin.html", {
             "error": refusal.message, "email": email, "school": school,
             "demo_sign_ins": DEMO_SIGN_INS if school.demo else (), "demo_password": DEMO_PASSWORD,
@@ -73,13 +71,3 @@ async def signout(request: Request, db: DbSession, person: PageUser):
     response = RedirectResponse("/signin", status_code=303)
     response.delete_cookie(cookie_name(request), path="/")
     return response
-
-
-@router.get("/")
-def home(request: Request, db: DbSession, person: PageUser):
-    """What each person needs first: recent sorties, and a button to start one for instructors."""
-    sorties = logbook.list_sorties(db, viewer=person, limit=15)
-    return render(request, "people/home.html", {
-        "person": person, "sorties": sorties,
-        "states": {s.id: logbook.display_state(db, s) for s in sorties},
-    })

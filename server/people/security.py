@@ -28,7 +28,3 @@ def new_secret(prefix: str = "") -> str:
 
 def sha256_hex(value: str) -> str:
     return hashlib.sha256(value.encode()).hexdigest()
-
-
-def same_secret(a: str, b: str) -> bool:
-    return secrets.compare_digest(a.encode(), b.encode())

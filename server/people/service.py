@@ -1,17 +1,17 @@
 """Accounts, sign-in, sessions, tokens and who may see whose records."""
-from datetime import timedelta
+from datetime import date, datetime, timedelta
+from zoneinfo import ZoneInfo
 
-from sqlalchemy import delete, func, or_, select
+from sqlalchemy import delete, func, select
 from sqlalchemy.orm import Session
 
 from server.config import Settings
 from server.errors import Conflict, Invalid, NotFound, Unauthorized
-from server.logbook.models import Sortie
-from server.people.models import ROLES, ApiToken, Person, PersonRole, SignInFailure, UserSession
+from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
 from server.people.security import hash_password, new_secret, sha256_hex, verify_password
 from server.records import audit
-from server.training.models import Enrolment
 from server.types import utcnow
+from server.vocabulary import ROLES
 
 # Sign-in throttling: after this many refusals for one email in the window, refuse without checking.
 THROTTLE_LIMIT = 10
@@ -26,7 +26,7 @@ def normalise_email(email: str) -> str:
 
 
 def create_person(session: Session, *, name: str, email: str, roles: list[str], password: str,
-                  actor_id: int | None = None) -> Person:
+                  actor: Person | None = None) -> Person:
     """Add a person with a hashed password; refuse a duplicate email or an unknown role."""
     email = normalise_email(email)
     if not name.strip():
@@ -44,12 +44,12 @@ def create_person(session: Session, *, name: str, email: str, roles: list[str], 
     person.role_rows = [PersonRole(role=r) for r in sorted(set(roles))]
     session.add(person)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="person", entity_id=person.id,
+    audit.append(session, actor_id=actor.id if actor else None, action="create", entity="person", entity_id=person.id,
                  after={"name": person.name, "email": person.email, "roles": person.roles})
     return person
 
 
-def update_person(session: Session, *, person: Person, actor_id: int, name: str | None = None,
+def update_person(session: Session, *, person: Person, actor: Person, name: str | None = None,
                   roles: list[str] | None = None, active: bool | None = None,
                   password: str | None = None) -> Person:
     before = person_snapshot(person)
@@ -71,7 +71,7 @@ def update_person(session: Session, *, person: Person, actor_id: int, name: str 
         if not active:
             end_all_sessions(session, person_id=person.id)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="edit", entity="person", entity_id=person.id,
+    audit.append(session, actor_id=actor.id, action="edit", entity="person", entity_id=person.id,
                  before=before, after=person_snapshot(person))
     return person
 
@@ -116,10 +116,10 @@ def authenticate(session: Session, *, email: str, password: str, client: str = "
         audit.append(session, actor_id=None, action="sign_in_refused", entity="person",
                      entity_id=None, after={"email": email})
         if recent >= THROTTLE_LIMIT:
-            raise Unauthorized("Too many failed sign-ins for this email. Wait 15 minutes and try again.")
+            raise Unauthorized("Too many failed sign-ins for this email. Wait 15 minutes and try again.", keep_record=True)
         if from_client >= CLIENT_THROTTLE_LIMIT:
-            raise Unauthorized("Too many failed sign-ins from this address. Wait 15 minutes and try again.")
-        raise Unauthorized("That email and password do not match an active account.")
+            raise Unauthorized("Too many failed sign-ins from this address. Wait 15 minutes and try again.", keep_record=True)
+        raise Unauthorized("That email and password do not match an active account.", keep_record=True)
     audit.append(session, actor_id=person.id, action="sign_in", entity="person", entity_id=person.id)
     return person
 
@@ -182,30 +182,26 @@ def person_for_token(session: Session, token: str) -> Person | None:
     return person if person is not None and person.active else None
 
 
-def student_ids_of(session: Session, instructor_id: int) -> set[int]:
-    """Pilots an instructor teaches: enrolled with them, or flown with them."""
-    enrolled = session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id))
-    flown = session.scalars(select(Sortie.pilot_id).where(Sortie.instructor_id == instructor_id).distinct())
-    return set(enrolled) | set(flown)
+def school(session: Session) -> School:
+    """The school row, made on first use (a new database starts in UTC)."""
+    row = session.get(School, 1)
+    if row is None:
+        row = School(id=1, name="Flight school", timezone="UTC")
+        session.add(row)
+        session.flush()
+    return row
 
 
-def can_view_pilot(session: Session, *, viewer: Person, pilot_id: int) -> bool:
-    """Students see themselves, instructors their students, chief pilots and admins everyone."""
-    if viewer.sees_everyone or viewer.id == pilot_id:
-        return True
-    if viewer.has_role("instructor"):
-        return pilot_id in student_ids_of(session, viewer.id)
-    return False
+def school_zone(session: Session) -> ZoneInfo:
+    """The school's time zone: it decides which local date a flight counts on."""
+    return ZoneInfo(school(session).timezone)
 
 
-def visible_people(session: Session, *, viewer: Person) -> list[Person]:
-    query = select(Person).order_by(Person.name)
-    if not viewer.sees_everyone:
-        ids = {viewer.id}
-        if viewer.has_role("instructor"):
-            ids |= student_ids_of(session, viewer.id)
-            # Instructors also need to pick any student when starting a sortie.
-            query = query.where(or_(Person.id.in_(ids), Person.role_rows.any(PersonRole.role == "student")))
-        else:
-            query = query.where(Person.id.in_(ids))
-    return list(session.scalars(query))
+def school_today(session: Session) -> date:
+    """Today's date at the school: currency, trends and digests count the school's local dates."""
+    return datetime.now(school_zone(session)).date()
+
+
+def local_date(session: Session, moment: datetime) -> date:
+    """The school's local date of a moment."""
+    return moment.astimezone(school_zone(session)).date()

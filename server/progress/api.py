@@ -4,10 +4,11 @@ from datetime import date
 
 from fastapi import APIRouter
 
-from server.deps import ApiUser, DbSession
-from server.logbook.schemas import Maneuver, Termination
+from server.deps import DbSession
+from server.people.deps import ApiUser
 from server.progress import service as progress
 from server.progress.schemas import StandardRead, TrendsRead
+from server.vocabulary import Maneuver, Termination
 
 router = APIRouter(tags=["progress"])
 

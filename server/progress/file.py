@@ -4,13 +4,14 @@ from datetime import date
 
 from sqlalchemy.orm import Session
 
+from server.compute.proficiency import AttemptPoint, KindTrend, MetricTrend
 from server.compute.trends import ewma_chart
+from server.people import service as people
 from server.people.models import Person
-from server.progress import service
+from server.progress import programs, service
 from server.progress.charts import ChartData, describe, trend_chart_svg
-from server.progress.service import AttemptPoint, KindTrend, MetricTrend
-from server.training import programs
-from server.training.models import MANEUVER_LABELS, TERMINATION_LABELS
+from server.training import programs as syllabi
+from server.vocabulary import MANEUVER_LABELS, TERMINATION_LABELS
 
 CHART_WINDOW = 50  # attempts drawn per chart; the EWMA and limits still use every attempt before them
 RECENT_ATTEMPTS = 12
@@ -254,11 +255,11 @@ def build(session: Session, *, viewer: Person, pilot_id: int, selected_key: str 
           as_of: date | None = None) -> ProgressFile:
     """Everything the progress file shows, from one read of the pilot's counted attempts."""
     pilot = service.viewable_pilot(session, viewer=viewer, pilot_id=pilot_id)
-    as_of = as_of or service.local_today(session)
+    as_of = as_of or people.school_today(session)
     points = service.read_points(session, pilot_id=pilot_id)
     kinds = [kind_view(t) for t in service.all_trends(session, pilot_id=pilot_id, as_of=as_of, points=points,
                                                       metrics=PAGE_METRICS)]
-    enrolment = programs.active_enrolment(session, student_id=pilot_id)
+    enrolment = syllabi.active_enrolment(session, student_id=pilot_id)
     program = programs.program_progress(session, enrolment=enrolment, points=points) if enrolment else None
     selected = next((k for k in kinds if k.key == selected_key), None)
     if selected is None and kinds:

@@ -2,12 +2,13 @@
 from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
-from server.deps import DbSession, PageUser
+from server.deps import DbSession
+from server.logbook import access
 from server.logbook import service as logbook
-from server.people import service as people
+from server.people.deps import PageUser
 from server.people.models import Person
 from server.progress import file as progress_file
-from server.training import programs
+from server.progress import programs
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -18,8 +19,8 @@ WAITING_SHOWN = 5  # the newest records waiting for the pilot's acknowledgement;
 @router.get("/progress", name="progress_index")
 def progress_index(request: Request, db: DbSession, person: PageUser):
     """A student goes straight to their own file; instructors and chief pilots pick a pilot."""
-    pilots = [p for p in people.visible_people(db, viewer=person)
-              if p.active and people.can_view_pilot(db, viewer=person, pilot_id=p.id)]
+    pilots = [p for p in access.visible_people(db, viewer=person)
+              if p.active and access.can_view_pilot(db, viewer=person, pilot_id=p.id)]
     if len(pilots) <= 1:
         return RedirectResponse(request.url_for("progress_file", pilot_id=person.id), status_code=303)
     return render(request, "progress/progress_index.html", {"person": person, "pilots": pilots})

@@ -5,7 +5,7 @@ from datetime import date, datetime
 from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.models import Base
+from server.db import Base
 from server.records import audit
 from server.types import utcnow
 
@@ -22,7 +22,10 @@ def _plain(value):
 
 
 def export_records(session: Session) -> dict:
-    """Every table's rows in primary-key order, and the audit head to check them against."""
+    """Every table's rows in primary-key order, and the audit head to check them against.
+
+    Every table registered on `Base`: the app and the `flarebook` command load them all (`server.models`).
+    """
     tables = {}
     for table in Base.metadata.sorted_tables:
         if table.name in SKIPPED_TABLES:

@@ -3,7 +3,8 @@ from datetime import date
 
 from fastapi import APIRouter, Query
 
-from server.deps import ApiUser, DbSession, require_role
+from server.deps import DbSession
+from server.people.deps import ApiUser, require_role
 from server.safety import service as safety
 from server.safety.schemas import (
     DigestRead,

@@ -5,7 +5,8 @@ from fastapi import APIRouter, Query, Request
 from fastapi.responses import Response
 from markupsafe import Markup
 
-from server.deps import DbSession, PageUser, require_role
+from server.deps import DbSession
+from server.people.deps import PageUser, require_role
 from server.safety import service as safety
 from server.safety.chart import MonthBar, months_chart_svg
 from server.safety.chart import describe as describe_months

@@ -8,15 +8,15 @@ import csv
 import io
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
-from zoneinfo import ZoneInfo
 
-from sqlalchemy import Integer, and_, case, cast, exists, func, literal_column, or_, select, true
-from sqlalchemy.orm import Session, aliased, selectinload
+from sqlalchemy import Integer, and_, case, cast, func, literal_column, or_, select, true
+from sqlalchemy.orm import Session, selectinload
 
 from server.errors import Invalid
-from server.fleet import service as fleet
 from server.fleet.models import Aircraft, Site
+from server.logbook.counted import counted_sorties_clause
 from server.logbook.models import Attempt, Sortie
+from server.people import service as people
 from server.people.models import Person
 
 FLAG_LABELS = {
@@ -75,13 +75,9 @@ class FlaggedAttempt:
 
 # ---- the date range --------------------------------------------------------------------------
 
-def school_today(session: Session) -> date:
-    return datetime.now(ZoneInfo(fleet.school(session).timezone)).date()
-
-
 def date_range(session: Session, *, date_from: date | None, date_to: date | None) -> tuple[date, date]:
     """The range asked for; by default the last twelve months up to today at the school."""
-    date_to = date_to or school_today(session)
+    date_to = date_to or people.school_today(session)
     date_from = date_from or date_to - timedelta(days=DEFAULT_DAYS)
     if date_from > date_to:
         raise Invalid("The start of the date range must not be after its end.")
@@ -90,7 +86,7 @@ def date_range(session: Session, *, date_from: date | None, date_to: date | None
 
 def preset_range(session: Session, preset: str) -> tuple[date, date]:
     """The dates of a named period ending today at the school: last 7 or 30 days, this quarter, 12 months."""
-    today = school_today(session)
+    today = people.school_today(session)
     if preset == "7d":
         return today - timedelta(days=6), today
     if preset == "30d":
@@ -109,14 +105,8 @@ def _dialect(session: Session) -> str:
 
 
 def _standing_signed(date_from: date, date_to: date):
-    """Signed attempts in the range, from the standing version of each record.
-
-    A signed version stays counted while its amendment is a draft, and gives way once the amendment
-    is signed, so no flight is counted twice.
-    """
-    newer = aliased(Sortie)
-    replaced = exists().where(newer.supersedes_id == Sortie.id, newer.state == "signed")
-    return and_(Sortie.state == "signed", ~replaced, Attempt.flown_on >= date_from, Attempt.flown_on <= date_to)
+    """Signed attempts in the range, from the standing version of each record (`counted_sorties_clause`)."""
+    return and_(counted_sorties_clause(), Attempt.flown_on >= date_from, Attempt.flown_on <= date_to)
 
 
 def _dimension(session: Session, name: str):

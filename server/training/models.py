@@ -7,21 +7,6 @@ from sqlalchemy.orm import Mapped, mapped_column, relationship
 from server.db import Base
 from server.types import UTCDateTime, utcnow
 
-MANEUVERS = ("straight_in", "turn_180", "turn_360", "hovering")
-MANEUVER_LABELS = {
-    "straight_in": "Straight-in",
-    "turn_180": "180° turn",
-    "turn_360": "360° turn",
-    "hovering": "Hovering",
-}
-TERMINATIONS = ("power_recovery", "to_hover", "touchdown")
-TERMINATION_LABELS = {
-    "power_recovery": "Power recovery",
-    "to_hover": "To a hover",
-    "touchdown": "Full touchdown",
-}
-
-
 class Standard(Base):
     """Tolerances for one maneuver kind at one program level.
 

@@ -1,11 +1,11 @@
-"""Shapes of programs (syllabi), enrolments, lesson confirmations and stage checks."""
-from datetime import date, datetime
+"""Shapes of programs (syllabi) and enrolments."""
+from datetime import date
 
 from typing import Annotated
 
 from pydantic import BaseModel, ConfigDict, Field, StringConstraints
 
-from server.logbook.schemas import Maneuver, Termination
+from server.vocabulary import Maneuver, Termination
 
 # Surrounding spaces are dropped before the length is checked, so a blank name is refused.
 Name = Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=120)]
@@ -90,56 +90,3 @@ class EnrolmentRead(BaseModel):
     instructor_id: int | None
     started_on: date
     active: bool
-
-
-class RequirementProgressRead(BaseModel):
-    requirement_id: int
-    maneuver: str
-    termination: str
-    attempts_needed: int
-    attempts_counted: int
-    met: bool
-
-
-class LessonProgressRead(BaseModel):
-    lesson_id: int
-    name: str
-    requirements: list[RequirementProgressRead]
-    attempts_met: bool = Field(description="every requirement met by counted attempts")
-    confirmed_by_id: int | None
-    confirmed_at: datetime | None
-
-
-class StageProgressRead(BaseModel):
-    stage_id: int
-    name: str
-    lessons: list[LessonProgressRead]
-    check_passed: bool
-    checked_by_id: int | None
-    checked_at: datetime | None
-
-
-class ProgressRead(BaseModel):
-    enrolment: EnrolmentRead
-    program_name: str
-    stages: list[StageProgressRead]
-    current_stage_id: int | None
-    current_lesson_id: int | None
-
-
-class StageCheckCreate(BaseModel):
-    model_config = ConfigDict(extra="forbid")
-    stage_id: int
-    passed: bool
-    remarks: str = Field(default="", max_length=4000)
-    password: str = Field(min_length=1, max_length=1000, description="the checker's password, re-entered to sign")
-
-
-class StageCheckRead(BaseModel):
-    id: int
-    enrolment_id: int
-    stage_id: int
-    checker_id: int
-    passed: bool
-    remarks: str
-    signed_at: datetime

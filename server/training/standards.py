@@ -5,6 +5,7 @@ from sqlalchemy.orm import Session
 
 from server.compute.scoring import DEFAULT_WEIGHTS
 from server.errors import Conflict, Invalid, NotFound
+from server.people.models import Person
 from server.records import audit
 from server.training.models import Program, Standard
 from server.training.standards_schemas import StandardCreate, StandardUpdate
@@ -66,13 +67,13 @@ def _require_unique(session: Session, *, data: StandardCreate, ignore_id: int | 
                        f"{data.level}; edit that standard instead.")
 
 
-def create_standard(session: Session, *, data: StandardCreate, actor_id: int) -> Standard:
+def create_standard(session: Session, *, data: StandardCreate, actor: Person) -> Standard:
     """Add a standard for a level and maneuver that has none yet."""
     _require_unique(session, data=data)
     row = Standard(**data.model_dump(), active=True)
     session.add(row)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="create", entity="standard", entity_id=row.id,
+    audit.append(session, actor_id=actor.id, action="create", entity="standard", entity_id=row.id,
                  after=as_data(row))
     return row
 
@@ -88,7 +89,7 @@ def merged(*, row: Standard, changes: StandardUpdate) -> StandardCreate:
             for e in error.errors())) from None
 
 
-def supersede_standard(session: Session, *, row: Standard, data: StandardCreate, actor_id: int) -> Standard:
+def supersede_standard(session: Session, *, row: Standard, data: StandardCreate, actor: Person) -> Standard:
     """An edit: a new row that supersedes this one, which retires; attempts keep the one they used."""
     if not row.active or superseded_by(session, row=row) is not None:
         raise Conflict("This version of the standard has been replaced; edit the current version.")
@@ -99,7 +100,7 @@ def supersede_standard(session: Session, *, row: Standard, data: StandardCreate,
     new = Standard(**data.model_dump(), active=True, supersedes_id=row.id)
     session.add(new)
     session.flush()
-    audit.append(session, actor_id=actor_id, action="edit", entity="standard", entity_id=new.id,
+    audit.append(session, actor_id=actor.id, action="edit", entity="standard", entity_id=new.id,
                  before={"id": row.id, **as_data(row)}, after=as_data(new))
     return new
 

@@ -3,9 +3,10 @@ from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 
 from server.compute.scoring import METRICS
-from server.deps import DbSession, SetupUser
+from server.deps import DbSession
 from server.errors import FlarebookError
 from server.forms import blank_to_none, plain, validate
+from server.people.deps import SetupUser
 from server.training import standards
 from server.training.models import Standard
 from server.training.standards_schemas import StandardCreate
@@ -68,7 +69,7 @@ async def standard_create(request: Request, db: DbSession, person: SetupUser):
     data, shown, errors, message = _parse(await request.form())
     if data is not None:
         try:
-            standards.create_standard(db, data=data, actor_id=person.id)
+            standards.create_standard(db, data=data, actor=person)
         except FlarebookError as error:
             message = error.message
         else:
@@ -89,7 +90,7 @@ async def standard_update(standard_id: int, request: Request, db: DbSession, per
     data, shown, errors, message = _parse(await request.form())
     if data is not None:
         try:
-            standards.supersede_standard(db, row=row, data=data, actor_id=person.id)
+            standards.supersede_standard(db, row=row, data=data, actor=person)
         except FlarebookError as error:
             message = error.message
         else:

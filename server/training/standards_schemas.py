@@ -1,12 +1,10 @@
 """Shapes of standards in the API and the standards form: tolerances and weights per maneuver and level."""
 from datetime import datetime
-from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
 
 from server.compute.scoring import DEFAULT_WEIGHTS, Tolerances
-
-Maneuver = Literal["straight_in", "turn_180", "turn_360", "hovering"]
+from server.vocabulary import Maneuver
 
 
 class StandardBase(BaseModel):

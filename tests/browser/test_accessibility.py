@@ -2,9 +2,9 @@
 import pytest
 from playwright.sync_api import expect
 
-from server.fleet import service as fleet
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
+from server.people import service as people
 from server.people.models import Person
 from tests.browser.conftest import axe_violations, sign_in
 from tests.support import make_sortie
@@ -34,7 +34,7 @@ def test_sign_in_page(page, world, axe_path):
 
 
 def test_sign_in_page_of_the_demo_with_its_sign_ins(page, world, db, axe_path):
-    fleet.school(db).demo = True
+    people.school(db).demo = True
     db.commit()
     page.goto("/signin")
     expect(page.get_by_role("heading", name="Demo school sign-ins")).to_be_visible()

@@ -10,7 +10,6 @@ import pytest
 from fastapi.testclient import TestClient
 from playwright.sync_api import expect
 
-from server.currency.board import school_today
 from server.people import service as people
 from server.people.models import Person
 from tests.browser.conftest import axe_violations, fits_the_width, nav_on_one_line, screenshot, sign_in
@@ -45,7 +44,7 @@ def _rules(app, world):
 
 def test_the_chief_reads_the_board_grid_and_opens_a_pilot(page, app, db, world, axe_path):
     _rules(app, world)
-    today = school_today(db)
+    today = people.school_today(db)
     make_sortie(db, world, attempts=1, sign=True, flown_at=datetime.combine(today - timedelta(days=25),
                                                                           datetime.min.time(), UTC))
     make_sortie(db, world, pilot=world.other_student, attempts=1, sign=True,

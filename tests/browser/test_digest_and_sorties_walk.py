@@ -9,7 +9,7 @@ from datetime import UTC, datetime, timedelta
 import pytest
 from playwright.sync_api import expect
 
-from server.safety import service as safety
+from server.people import service as people
 from tests.browser.conftest import axe_violations, fits_the_width, nav_on_one_line, screenshot, sign_in
 from tests.safety.test_digest import CLEAN, FAST, LOW_RPM, flown
 from tests.support import make_sortie
@@ -23,7 +23,7 @@ def page(new_context):
 
 
 def test_the_digest_presets_and_the_month_chart(page, db, world, axe_path):
-    today = safety.school_today(db)
+    today = people.school_today(db)
     now = datetime(today.year, today.month, today.day, 9, tzinfo=UTC)
     flown(db, world, [LOW_RPM, FAST, CLEAN], when=now - timedelta(days=2))
     flown(db, world, [CLEAN, FAST], when=now - timedelta(days=20))

@@ -15,6 +15,7 @@ from server.compute.atmosphere import (
     density_altitude_ft,
     density_ratio,
     derive_atmosphere,
+    hpa_to_inhg,
     inhg_to_hpa,
     isa_temperature_c,
     pressure_altitude_ft,
@@ -251,3 +252,11 @@ def test_out_of_range_input_is_refused_with_a_plain_reason(elevation_ft, altimet
 def test_pressure_altitude_above_the_troposphere_is_refused():
     with pytest.raises(ValueError, match="pressure altitude"):
         density_altitude_ft(40_000.0, -56.5)
+
+
+@pytest.mark.parametrize(("hpa", "inhg"), [(1013.25, 29.92), (1000.0, 29.53), (1040.0, 30.71)])
+def test_hpa_to_inhg_matches_the_standard_setting_and_reads_back(hpa, inhg):
+    # ICAO standard atmosphere: 1013.25 hPa is 29.92 inHg (common practice, the standard altimeter setting);
+    # 1000 hPa = 29.53 inHg and 1040 hPa = 30.71 inHg from the FAA/ICAO conversion tables (from memory).
+    assert hpa_to_inhg(hpa) == pytest.approx(inhg, abs=0.005)
+    assert inhg_to_hpa(hpa_to_inhg(hpa)) == pytest.approx(hpa)

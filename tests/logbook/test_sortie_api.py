@@ -1,8 +1,8 @@
 """The sortie and attempt API: what a script or the tablet sees, including every refusal."""
 from sqlalchemy import func, select
 
-from server.logbook.models import Attempt, Sortie
-from server.records.models import AuditEvent, Signature
+from server.logbook.models import Attempt, Signature, Sortie
+from server.records.models import AuditEvent
 from tests.support import PASSWORD, make_sortie
 
 GOOD_ATTEMPT = {

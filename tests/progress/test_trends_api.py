@@ -5,8 +5,8 @@ import pytest
 from scipy.stats import theilslopes
 from sqlalchemy import select
 
-from server.logbook.models import Attempt
 from server.logbook import service as logbook
+from server.logbook.models import Attempt
 from server.people.models import Person
 from tests.progress.helpers import GOOD, POOR, fly
 

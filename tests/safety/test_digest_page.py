@@ -11,6 +11,7 @@ import re
 import pytest
 from datetime import UTC, date, datetime, timedelta
 
+from server.people import service as people
 from server.safety import service as safety
 from server.safety.chart import HEIGHT, BOTTOM, TOP, MonthBar, months_chart_svg
 from tests.safety.test_digest import CLEAN, FAST, RANGE, counted_attempts, expected_counts, flights, flown  # noqa: F401
@@ -21,7 +22,7 @@ LATE_FLARE = CLEAN | {"flare_height_ft": 40}
 
 
 def _school_today(db):
-    return safety.school_today(db)
+    return people.school_today(db)
 
 
 def test_presets_choose_the_period_and_mark_it(chief_client, db, world):

@@ -1,4 +1,7 @@
 """Programs: a chief pilot writes the syllabus, enrols students; lessons follow the records; stage checks."""
+from sqlalchemy import select
+
+from server.records.models import AuditEvent
 from tests.progress.helpers import GOOD, POOR, fly
 from tests.support import PASSWORD
 
@@ -142,6 +145,18 @@ def test_a_check_instructor_or_chief_pilot_signs_the_stage_check(db, world, chie
     early = chief_client.api("POST", url, json={"stage_id": program["stages"][1]["id"], "passed": True,
                                                 "password": PASSWORD})
     assert early.status_code == 409 and "Hovering" in early.json()["detail"]
+
+
+def test_a_wrong_password_on_the_stage_check_api_stays_in_the_audit_chain(db, world, chief_client, instructor_client,
+                                                                          other_instructor_client):
+    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client)
+    wrong = other_instructor_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/stage-checks", json={
+        "stage_id": program["stages"][0]["id"], "passed": True, "password": "nope"})
+    assert wrong.status_code == 422
+    db.expire_all()
+    last = db.scalar(select(AuditEvent).order_by(AuditEvent.seq.desc()).limit(1))
+    assert (last.action, last.actor_id, last.entity_id, last.reason) == (
+        "sign_refused", world.other_instructor.id, str(enrolment["id"]), "wrong password")
 
 
 def test_setup_page_adds_a_stage_and_a_requirement(chief_client, student_client):

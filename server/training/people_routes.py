@@ -1,14 +1,18 @@
-"""Setup pages for people: add, edit, roles, deactivate, and enrol a new student (chief pilot, admin)."""
+"""Setup pages for people: add, edit, roles, deactivate, and enrol a new student (chief pilot, admin).
+
+Served by training because a person's page enrols them in a program (training's); accounts are people's.
+"""
 from fastapi import APIRouter, Query, Request
 from fastapi.responses import RedirectResponse
 from pydantic import ValidationError
 from sqlalchemy import select
 
-from server.deps import DbSession, SetupUser
+from server.deps import DbSession
 from server.errors import FlarebookError, Invalid
 from server.people import service as people
-from server.people.models import ROLES, Person
-from server.progress.service import local_today
+from server.people.deps import SetupUser
+from server.people.models import Person
+from server.vocabulary import ROLES
 from server.training import programs
 from server.training.models import Enrolment
 from server.training.program_schemas import EnrolmentCreate
@@ -73,7 +77,7 @@ def _person_context(db, person: Person, target: Person) -> dict:
     return {
         "person": person, "target": target, "enrolments": enrolments, "program_names": program_names,
         "programs": programs.list_programs(db), "instructors": instructors,
-        "names": {p.id: p.name for p in instructors}, "today": local_today(db).isoformat(),
+        "names": {p.id: p.name for p in instructors}, "today": people.school_today(db).isoformat(),
     }
 
 

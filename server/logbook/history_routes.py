@@ -1,9 +1,10 @@
 """The record history page."""
 from fastapi import APIRouter, Request
 
-from server.deps import DbSession, PageUser
+from server.deps import DbSession
 from server.logbook import service as logbook
-from server.records.history import record_history
+from server.logbook.history import record_history
+from server.people.deps import PageUser
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -13,5 +14,5 @@ router = APIRouter(include_in_schema=False)
 def history_page(sortie_id: int, request: Request, db: DbSession, person: PageUser):
     """Every version of a sortie record, each signature re-checked, and its audit entries in the chain."""
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
-    return render(request, "records/history.html", {"person": person, "sortie": sortie,
+    return render(request, "logbook/history.html", {"person": person, "sortie": sortie,
                                                      "history": record_history(db, sortie)})

@@ -5,10 +5,10 @@ from sqlalchemy import and_, or_, select
 from sqlalchemy.orm import Session
 
 from server.logbook import service as logbook
-from server.logbook.models import Attempt, Sortie
+from server.logbook.models import Attempt, Signature, Sortie
 from server.people.models import Person
 from server.records import audit
-from server.records.models import AuditEvent, Signature
+from server.records.models import AuditEvent
 
 
 @dataclass

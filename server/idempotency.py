@@ -10,22 +10,38 @@ PostgreSQL's unique index) and then gets its answer.
 import hashlib
 import json
 from collections.abc import Callable
-from typing import Annotated
+from datetime import datetime
+from typing import Annotated, Any
 
 from fastapi import Depends, Header, Request, Response
 from fastapi.encoders import jsonable_encoder
 from pydantic import BaseModel
-from sqlalchemy import select
+from sqlalchemy import ForeignKey, Integer, String, Text, UniqueConstraint, select
 from sqlalchemy.exc import IntegrityError
-from sqlalchemy.orm import Session
+from sqlalchemy.orm import Mapped, Session, mapped_column
 
-from server.deps import ApiUser, DbSession
+from server.db import Base
+from server.deps import DbSession
 from server.errors import Conflict, FlarebookError, Invalid
-from server.people.models import Person
-from server.records.models import IdempotencyKey
+from server.types import UTCDateTime, utcnow
 
 HEADER = "Idempotency-Key"
 MAX_KEY_LENGTH = 255
+
+
+class IdempotencyKey(Base):
+    """The first answer to a create request, replayed when a tablet sends the same key again."""
+
+    __tablename__ = "idempotency_keys"
+    __table_args__ = (UniqueConstraint("person_id", "key"),)
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    person_id: Mapped[int] = mapped_column(ForeignKey("people.id", ondelete="CASCADE"))
+    key: Mapped[str] = mapped_column(String(255))
+    request_sha256: Mapped[str] = mapped_column(String(64))
+    status_code: Mapped[int] = mapped_column(Integer)
+    response_body: Mapped[str] = mapped_column(Text)
+    created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
 
 
 class BadKey(FlarebookError):
@@ -54,11 +70,11 @@ def fingerprint(method: str, path: str, body: bytes) -> str:
 class Once:
     """Runs a create at most once per key and person, and remembers its answer."""
 
-    def __init__(self, db: Session, person: Person, key: str | None, request_sha256: str):
-        self.db, self.person, self.key, self.request_sha256 = db, person, key, request_sha256
+    def __init__(self, db: Session, person_id: int, key: str | None, request_sha256: str):
+        self.db, self.person_id, self.key, self.request_sha256 = db, person_id, key, request_sha256
 
     def _stored(self) -> IdempotencyKey | None:
-        return self.db.scalar(select(IdempotencyKey).where(IdempotencyKey.person_id == self.person.id,
+        return self.db.scalar(select(IdempotencyKey).where(IdempotencyKey.person_id == self.person_id,
                                                            IdempotencyKey.key == self.key))
 
     def _replay(self, row: IdempotencyKey) -> Response:
@@ -70,7 +86,7 @@ class Once:
         row = self._stored()
         if row is not None:
             return self._replay(row)
-        claim = IdempotencyKey(person_id=self.person.id, key=self.key, request_sha256=self.request_sha256,
+        claim = IdempotencyKey(person_id=self.person_id, key=self.key, request_sha256=self.request_sha256,
                                status_code=0, response_body="")
         try:
             with self.db.begin_nested():
@@ -103,10 +119,12 @@ KeyHeader = Annotated[str | None, Header(
 )]
 
 
-async def once(request: Request, db: DbSession, person: ApiUser, raw: KeyHeader = None) -> Once:
-    key = parse_key(raw) if raw is not None else None
-    digest = fingerprint(request.method, request.url.path, await request.body()) if key else ""
-    return Once(db, person, key, digest)
+def idempotent_create(signed_in: Callable) -> Any:
+    """The `IdempotentCreate` dependency, keyed by the person that `signed_in` resolves (people owns sign-in)."""
 
+    async def once(request: Request, db: DbSession, person=Depends(signed_in), raw: KeyHeader = None) -> Once:
+        key = parse_key(raw) if raw is not None else None
+        digest = fingerprint(request.method, request.url.path, await request.body()) if key else ""
+        return Once(db, person.id, key, digest)
 
-IdempotentCreate = Annotated[Once, Depends(once)]
+    return Annotated[Once, Depends(once)]

@@ -10,9 +10,9 @@ from sqlalchemy import select, text
 
 from server.db import make_engine, make_session_factory
 from server.logbook import service as logbook
-from server.logbook.models import Sortie
+from server.logbook.models import MEANINGS, Signature, Sortie
 from server.records import audit
-from server.records.models import MEANINGS, AuditEvent, Signature
+from server.records.models import AuditEvent
 from tests.support import PASSWORD, make_sortie
 
 ATTEMPT = {"maneuver": "straight_in", "termination": "touchdown", "descent_kias": 65, "flare_height_ft": 90,

@@ -1,18 +1,24 @@
-"""Pages: programs (syllabus setup and enrolment), lesson confirmation and stage checks."""
+"""Pages: programs (syllabus setup and enrolment), lesson confirmation and stage checks.
+
+The program pages live here, above logbook, because they name only the people the viewer may see.
+"""
 from fastapi import APIRouter, Request
 from fastapi.responses import RedirectResponse
 from pydantic import ValidationError
 from sqlalchemy import select
 
-from server.deps import DbSession, PageUser
+from server.deps import DbSession
 from server.errors import FlarebookError, Invalid
+from server.logbook import access
 from server.people import service as people
+from server.people.deps import PageUser
 from server.people.models import Person
+from server.progress import programs as progress
 from server.progress.routes import file_context
-from server.progress.service import local_today
 from server.training import programs
-from server.training.models import MANEUVERS, TERMINATIONS, Enrolment, Program, Standard
+from server.training.models import Enrolment, Program, Standard
 from server.training.program_schemas import EnrolmentCreate, ProgramWrite
+from server.vocabulary import MANEUVERS, TERMINATIONS
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
@@ -110,7 +116,7 @@ def _validation_message(error: ValidationError) -> str:
 def _program_context(db, person: Person, program: Program) -> dict:
     enrolments = list(db.scalars(select(Enrolment).where(Enrolment.program_id == program.id)
                                  .order_by(Enrolment.active.desc(), Enrolment.started_on.desc())))
-    everyone = people.visible_people(db, viewer=person)
+    everyone = access.visible_people(db, viewer=person)
     return {
         "person": person, "program": program, "can_edit": person.has_role(*programs.SETUP_ROLES),
         "standards": list(db.scalars(select(Standard).where(Standard.active.is_(True)).order_by(Standard.name))),
@@ -118,7 +124,7 @@ def _program_context(db, person: Person, program: Program) -> dict:
         "enrolments": enrolments, "names": {p.id: p.name for p in everyone},
         "students": [p for p in everyone if p.active and p.has_role("student")],
         "instructors": [p for p in everyone if p.active and p.has_role("instructor")],
-        "today": local_today(db).isoformat(),
+        "today": people.school_today(db).isoformat(),
     }
 
 
@@ -212,9 +218,9 @@ def _back_to_file(request: Request, db, person: Person, enrolment: Enrolment, me
 @router.post("/enrolments/{enrolment_id}/lessons/{lesson_id}/confirm", name="lesson_confirm")
 def lesson_confirm(enrolment_id: int, lesson_id: int, request: Request, db: DbSession, person: PageUser):
     """An instructor confirms a lesson from the progress file."""
-    enrolment = programs.get_enrolment(db, enrolment_id=enrolment_id, viewer=person)
+    enrolment = progress.get_enrolment(db, enrolment_id=enrolment_id, viewer=person)
     try:
-        programs.confirm_lesson(db, actor=person, enrolment=enrolment, lesson_id=lesson_id)
+        progress.confirm_lesson(db, actor=person, enrolment=enrolment, lesson_id=lesson_id)
     except FlarebookError as error:
         db.rollback()
         return _back_to_file(request, db, person, enrolment, error.message, error.status_code)
@@ -224,18 +230,17 @@ def lesson_confirm(enrolment_id: int, lesson_id: int, request: Request, db: DbSe
 @router.post("/enrolments/{enrolment_id}/stage-check", name="stage_check_sign")
 async def stage_check_sign(enrolment_id: int, request: Request, db: DbSession, person: PageUser):
     """A chief pilot or a check instructor signs a stage check from the progress file."""
-    enrolment = programs.enrolment_for_check(db, enrolment_id=enrolment_id, actor=person)
+    enrolment = progress.enrolment_for_check(db, enrolment_id=enrolment_id, actor=person)
     form = await request.form()
     try:
         stage_id = int(str(form.get("stage_id", "")))
         if form.get("passed") not in ("true", "false"):
             raise Invalid("Choose whether the stage check was passed.")
-        programs.sign_stage_check(db, actor=person, enrolment=enrolment, stage_id=stage_id,
+        progress.sign_stage_check(db, actor=person, enrolment=enrolment, stage_id=stage_id,
                                   passed=form.get("passed") == "true", remarks=str(form.get("remarks", "")),
                                   password=str(form.get("password", "")))
     except ValueError:
         return _back_to_file(request, db, person, enrolment, "Choose a stage to check.", 422)
     except FlarebookError as error:
-        db.commit()  # a refused signature stays in the audit chain
         return _back_to_file(request, db, person, enrolment, error.message, error.status_code)
     return RedirectResponse(request.url_for("progress_file", pilot_id=enrolment.student_id), status_code=303)
