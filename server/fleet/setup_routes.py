@@ -62,7 +62,7 @@ async def _aircraft_submitted(request: Request):
 async def aircraft_create(request: Request, db: DbSession, person: SetupUser):
     values, data, errors, message = await _aircraft_submitted(request)
     again = _saved_or_again(
-        request, lambda d: fleet.create_aircraft(db, data=d, actor_id=person.id),
+        request, lambda d: fleet.create_aircraft(db, data=d, actor=person),
         lambda text: _aircraft_form(request, db, person, None, values, errors, text, status=422), data, message)
     return again or RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
@@ -79,7 +79,7 @@ async def aircraft_update(aircraft_id: int, request: Request, db: DbSession, per
     row = fleet.get_aircraft(db, aircraft_id)
     values, data, errors, message = await _aircraft_submitted(request)
     again = _saved_or_again(
-        request, lambda d: fleet.update_aircraft(db, row=row, data=d, actor_id=person.id),
+        request, lambda d: fleet.update_aircraft(db, row=row, data=d, actor=person),
         lambda text: _aircraft_form(request, db, person, row, values, errors, text, status=422), data, message)
     return again or RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
@@ -87,13 +87,13 @@ async def aircraft_update(aircraft_id: int, request: Request, db: DbSession, per
 @router.post("/setup/aircraft/{aircraft_id}/deactivate", name="aircraft_deactivate")
 def aircraft_deactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
     """New sorties no longer offer it; every record flown in it stays."""
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=False, actor_id=person.id)
+    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=False, actor=person)
     return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
 
 @router.post("/setup/aircraft/{aircraft_id}/reactivate", name="aircraft_reactivate")
 def aircraft_reactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=True, actor_id=person.id)
+    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=True, actor=person)
     return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
 
@@ -155,7 +155,7 @@ async def _site_submitted(request: Request):
 async def site_create(request: Request, db: DbSession, person: SetupUser):
     shown, data, errors, message = await _site_submitted(request)
     again = _saved_or_again(
-        request, lambda d: fleet.create_site(db, data=d, actor_id=person.id),
+        request, lambda d: fleet.create_site(db, data=d, actor=person),
         lambda text: _site_form(request, person, None, shown, errors, text, status=422), data, message)
     return again or RedirectResponse(request.url_for("site_list"), status_code=303)
 
@@ -173,7 +173,7 @@ async def site_update(site_id: int, request: Request, db: DbSession, person: Set
     row = fleet.get_site(db, site_id)
     shown, data, errors, message = await _site_submitted(request)
     again = _saved_or_again(
-        request, lambda d: fleet.update_site(db, row=row, data=d, actor_id=person.id),
+        request, lambda d: fleet.update_site(db, row=row, data=d, actor=person),
         lambda text: _site_form(request, person, row, shown, errors, text, status=422), data, message)
     return again or RedirectResponse(request.url_for("site_list"), status_code=303)
 
@@ -181,11 +181,11 @@ async def site_update(site_id: int, request: Request, db: DbSession, person: Set
 @router.post("/setup/sites/{site_id}/deactivate", name="site_deactivate")
 def site_deactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
     """New sorties no longer offer it; every record flown there stays."""
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=False, actor_id=person.id)
+    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=False, actor=person)
     return RedirectResponse(request.url_for("site_list"), status_code=303)
 
 
 @router.post("/setup/sites/{site_id}/reactivate", name="site_reactivate")
 def site_reactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=True, actor_id=person.id)
+    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=True, actor=person)
     return RedirectResponse(request.url_for("site_list"), status_code=303)

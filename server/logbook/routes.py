@@ -94,7 +94,7 @@ def sortie_list(request: Request, db: DbSession, person: PageUser, offset: int =
         "aircraft_id": filters["aircraft_id"], "state": filters["state"],
         "date_from": filters["flown_from"] and filters["flown_from"].isoformat(),
         "date_to": filters["flown_to"] and filters["flown_to"].isoformat()}.items() if value is not None}
-    pilots = people.visible_people(db, viewer=person)
+    pilots = access.visible_people(db, viewer=person)
     here = request.url_for("sortie_list")
     return render(request, "logbook/sortie_list.html", {
         "person": person, "sorties": sorties, "limit": SORTIES_PER_PAGE, "offset": offset, "kept": kept,

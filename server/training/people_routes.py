@@ -32,7 +32,7 @@ def people_list(request: Request, db: DbSession, person: SetupUser,
                 show: str = Query(default="active", pattern="^(active|inactive|all)$"),
                 role: str | None = Query(default=None, pattern="^(student|instructor|chief_pilot|admin)$")):
     """Everyone who signs in, filtered by state and role in the address."""
-    everyone = people.visible_people(db, viewer=person)
+    everyone = people.list_people(db)
     shown = [p for p in everyone
              if (show == "all" or p.active == (show == "active")) and (role is None or p.has_role(role))]
     return render(request, "people/setup_list.html", {
@@ -61,7 +61,7 @@ async def person_create(request: Request, db: DbSession, person: SetupUser):
               "roles": _roles(form)}
     try:
         created = people.create_person(db, name=values["name"], email=values["email"], roles=values["roles"],
-                                       password=str(form.get("password", "")), actor_id=person.id)
+                                       password=str(form.get("password", "")), actor=person)
     except FlarebookError as error:
         return _form_page(request, person, values=values, message=error.message, status=error.status_code)
     return RedirectResponse(request.url_for("person_page", person_id=created.id).include_query_params(added=1),
@@ -72,8 +72,7 @@ def _person_context(db, person: Person, target: Person) -> dict:
     enrolments = list(db.scalars(select(Enrolment).where(Enrolment.student_id == target.id)
                                  .order_by(Enrolment.active.desc(), Enrolment.started_on.desc())))
     program_names = {p.id: p.name for p in programs.list_programs(db)}
-    instructors = [p for p in people.visible_people(db, viewer=person)
-                   if p.active and p.has_role("instructor") and p.id != target.id]
+    instructors = [p for p in people.list_people(db) if p.active and p.has_role("instructor") and p.id != target.id]
     return {
         "person": person, "target": target, "enrolments": enrolments, "program_names": program_names,
         "programs": programs.list_programs(db), "instructors": instructors,
@@ -104,7 +103,7 @@ async def person_update(person_id: int, request: Request, db: DbSession, person:
         if target.id == person.id and not set(values["roles"]) & {"chief_pilot", "admin"}:
             raise Invalid("Keep a chief pilot or administrator role on your own account, or you lock yourself "
                           "out of Setup. Ask another chief pilot to change it.")
-        people.update_person(db, person=target, actor_id=person.id, name=values["name"], roles=values["roles"])
+        people.update_person(db, person=target, actor=person, name=values["name"], roles=values["roles"])
     except FlarebookError as error:
         db.rollback()
         target = people.get_person(db, person_id)
@@ -120,7 +119,7 @@ def _set_active(request: Request, db, person: Person, person_id: int, active: bo
             **_person_context(db, person, target),
             "message": "You cannot deactivate your own account. Ask another chief pilot or administrator.",
         }, status_code=409)
-    people.update_person(db, person=target, actor_id=person.id, active=active)  # ends their sessions
+    people.update_person(db, person=target, actor=person, active=active)  # ends their sessions
     return RedirectResponse(request.url_for("person_page", person_id=target.id), status_code=303)
 
 
