@@ -6,8 +6,8 @@ dates (DESIGN section 2), both ends included.
 """
 from datetime import UTC, datetime, timedelta
 
-from server.fleet import service as fleet
 from server.logbook import service as logbook
+from server.people import service as people
 from server.people.models import Person
 from tests.support import add_second_type, cell_texts, make_sortie, parsed
 
@@ -44,7 +44,7 @@ def test_filters_by_pilot_instructor_aircraft_and_state(chief_client, db, world)
 
 
 def test_dates_are_the_schools_local_dates_both_ends_included(chief_client, db, world):
-    fleet.school(db).timezone = "Pacific/Auckland"  # UTC+13 in November
+    people.school(db).timezone = "Pacific/Auckland"  # UTC+13 in November
     db.commit()
     # 20 Nov 2026 11:30 UTC is already 21 Nov in Auckland.
     make_sortie(db, world, attempts=1, flown_at=datetime(2026, 11, 20, 11, 30, tzinfo=UTC))
