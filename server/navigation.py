@@ -17,7 +17,7 @@ NAV = (
     NavItem("Sorties", "sortie_list", (), ("/sorties", "/attempts")),
     NavItem("Start a sortie", "sortie_new", ("instructor", "chief_pilot"), ("/sorties/new",)),
     NavItem("Progress", "progress_index", (), ("/progress", "/people/", "/enrolments")),
-    NavItem("Programs", "program_list", ("instructor", "chief_pilot", "admin"), ("/programs",)),
+    NavItem("Programs", "program_list", (), ("/programs",)),
     NavItem("Readiness", "readiness_board", ("chief_pilot", "admin"), ("/currency",)),
     NavItem("Safety digest", "safety_digest", ("chief_pilot",), ("/safety",)),
     NavItem("Setup", "setup_home", ("chief_pilot", "admin"), ("/setup",)),

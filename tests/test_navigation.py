@@ -17,7 +17,7 @@ def _nav(client, path="/"):
 
 
 def test_each_role_sees_its_own_links(chief_client, instructor_client, student_client):
-    assert _nav(student_client)[0] == ["Sorties", "Progress"]
+    assert _nav(student_client)[0] == ["Sorties", "Progress", "Programs"]
     assert _nav(instructor_client)[0] == ["Sorties", "Start a sortie", "Progress", "Programs"]
     assert _nav(chief_client)[0] == ["Sorties", "Start a sortie", "Progress", "Programs", "Readiness",
                                      "Safety digest", "Setup"]
