@@ -18,6 +18,7 @@ from server.head import HeadAsGet
 from server.logbook import api as logbook_api
 from server.logbook import history_routes, people_api as visible_people_api, type_page_routes
 from server.logbook import routes as logbook_routes
+from server.logbook import track_api, track_routes
 from server.openapi_errors import describe_errors
 from server.people import api as people_api
 from server.people import routes as people_routes
@@ -72,6 +73,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     for module in (fleet_routes, fleet_setup_routes, type_page_routes, people_setup_routes, standards_routes):
         app.include_router(module.router)
     app.include_router(history_routes.router)
+    app.include_router(track_api.router, prefix="/api/v1")
+    app.include_router(track_routes.router)
     app.include_router(currency_api.router, prefix="/api/v1")
     app.include_router(currency_api.feed_router)
     app.include_router(currency_routes.router)

@@ -9,6 +9,7 @@ from server.db import make_engine, make_session_factory, transaction
 from server.errors import FlarebookError
 from server.migrate import upgrade
 import server.models  # noqa: F401  (every table on Base, for export)
+from server.logbook import track_commands
 from server.people import service as people
 from server.people.models import Person
 from server.records import commands as records_commands
@@ -85,6 +86,7 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("--label", default="command line")
     new.set_defaults(run=cmd_token_new)
     records_commands.add_commands(sub)  # backup, restore, export, audit verify, audit head
+    track_commands.add_commands(sub)  # track import
     return parser
 
 

@@ -18,6 +18,8 @@ class Settings(BaseSettings):
     session_absolute_hours: int = 12
     # Shown on the sign-in page only for the invented demo school.
     show_demo_sign_ins: bool = False
+    # Recorded tracks are larger than any other upload: a 2-hour 10 Hz GPX file is about 15 MB.
+    track_upload_max_bytes: int = 20_000_000
 
 
 @lru_cache

@@ -9,9 +9,11 @@ from datetime import UTC, date, datetime, time, timedelta
 
 from sqlalchemy.orm import Session
 
+from server.compute.track_synthetic import DemoAutorotation, synthetic_track_csv
 from server.currency.models import CurrencyRule
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.logbook import service as logbook
+from server.logbook import tracks
 from server.logbook.schemas import AttemptFields, SortieCreate
 from server.people import service as people
 from server.people.routes import DEMO_PASSWORD
@@ -71,9 +73,12 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     session.add(kestrel)
     session.flush()
     aircraft = [Aircraft(registration=r, type_id=kestrel.id) for r in ("FB-KTA", "FB-KTB", "FB-KTC")]
+    # Aim points are invented coordinates, for distances measured from the demo's invented tracks.
     sites = [
-        Site(name="Larkspur Field", elevation_ft=420, landing_dirs_deg=[90, 270]),
-        Site(name="Highmoor practice area", elevation_ft=2150, landing_dirs_deg=[180, 360]),
+        Site(name="Larkspur Field", elevation_ft=420, landing_dirs_deg=[90, 270], aim_lat_deg=51.0312,
+             aim_lon_deg=-2.4127),
+        Site(name="Highmoor practice area", elevation_ft=2150, landing_dirs_deg=[180, 360], aim_lat_deg=51.1874,
+             aim_lon_deg=-2.6351),
         Site(name="Saltmarsh strip", elevation_ft=30, landing_dirs_deg=[140, 320]),
     ]
     session.add_all(aircraft + sites)
@@ -93,8 +98,11 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
             flown = today - timedelta(weeks=week, days=rng.randint(0, 3))
             progress = (first_week - week) / max(first_week, 1) * growth
             draft = week == 0 and key == "ada"
-            count += _sortie(session, rng, who[instructor], who[key], rng.choice(aircraft), rng.choice(sites),
-                             flown, progress, sign=not draft)
+            # Ada's latest sorties carry invented recorded tracks, so measured figures show on first start.
+            with_track = key == "ada" and week <= 2
+            count += _sortie(session, rng, who[instructor], who[key], rng.choice(aircraft),
+                             sites[0] if with_track else rng.choice(sites), flown, progress, sign=not draft,
+                             with_track=with_track)
     # Recurrent training: the instructors fly with the chief pilot, and the chief pilot with Ines.
     for key, instructor, weeks in (("ines", "chief", (22, 9, 2)), ("tomas", "chief", (25, 15)),
                                    ("chief", "ines", (20, 7))):
@@ -104,7 +112,8 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     return f"Loaded {SCHOOL_NAME}: {len(PEOPLE)} people, {count} practice autorotations. Password: {DEMO_PASSWORD}"
 
 
-def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, progress: float, *, sign: bool) -> int:
+def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, progress: float, *, sign: bool,
+            with_track: bool = False) -> int:
     """One sortie of 3 to 6 attempts whose quality follows the pilot's progress (0 new, 1 at standard)."""
     when = datetime.combine(flown_on, time(hour=rng.choice((8, 10, 13, 15)), minute=rng.choice((0, 30))), UTC)
     summer = 1 - abs(flown_on.month - 7) / 6
@@ -144,11 +153,35 @@ def _sortie(session, rng, instructor, pilot, aircraft, site, flown_on: date, pro
         logbook.add_attempt(session, actor=instructor, sortie=sortie, data=data)
     session.flush()
     session.refresh(sortie)
+    if with_track:
+        _demo_track(session, rng, instructor, sortie, accept=sign)
     if sign:
         signature = logbook.record_instructor_signature(session, actor=instructor, sortie=sortie)
         # Signed at the debrief, not when the demo was loaded (the audit entry keeps the load time).
         signature.signed_at = when + timedelta(hours=2)
     return n
+
+
+def _demo_track(session, rng, instructor, sortie, *, accept: bool) -> None:
+    """An invented track of the sortie's forward-flight autorotations; on a signed sortie they are accepted."""
+    flown = [a for a in sortie.attempts if a.maneuver != "hovering" and (a.entry_height_ft or 0) >= 400]
+    ends = {"power_recovery": "recovery", "touchdown": "touchdown", "to_hover": "hover"}
+    plan = [DemoAutorotation(end=ends[a.termination], entry_ft=a.entry_height_ft, rate_fpm=rng.randint(1400, 1800),
+                             flare_ft=max(40.0, a.flare_height_ft or 90.0), end_kt=min(12.0, a.touchdown_speed_kt or 4.0))
+            for a in flown]
+    if not plan:
+        return
+    site = sortie.site
+    data = synthetic_track_csv(started_at=sortie.flown_at, aim_lat_deg=site.aim_lat_deg, aim_lon_deg=site.aim_lon_deg,
+                               elevation_ft=site.elevation_ft, autorotations=plan, seed=sortie.id)
+    track = tracks.import_track(session, actor=instructor, sortie=sortie, data=data,
+                                filename=f"invented-track-{sortie.flown_at:%Y%m%d}.csv", max_bytes=len(data))
+    if accept and len(track.detections) == len(flown):
+        for detection, attempt in zip(track.detections, flown):
+            if (detection["termination"] == "power_recovery") == (attempt.termination == "power_recovery"):
+                tracks.accept_detection(session, actor=instructor, track=track, index=detection["index"],
+                                        attempt_id=attempt.id)
+    session.refresh(sortie)
 
 
 def _standards(session: Session) -> None:

@@ -1,14 +1,14 @@
 """Sites can be deactivated: kept for the records flown there, no longer offered for new sorties.
 
 Revision ID: d7e2a9c41b83
-Revises: c3a1f0b7d2e4
+Revises: afa3bff855a7
 Created: 2026-12-01 22:40:00
 """
 import sqlalchemy as sa
 from alembic import op
 
 revision = 'd7e2a9c41b83'
-down_revision = 'c3a1f0b7d2e4'
+down_revision = 'afa3bff855a7'
 branch_labels = None
 depends_on = None
 

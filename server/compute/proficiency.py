@@ -21,6 +21,10 @@ METRICS = ("touchdown_speed_kt", "flare_height_dev_ft", "point_error_ft", "nr_de
 # Signed metrics have their target at 0: the size of the value is what improves or degrades.
 SIGNED_METRICS = frozenset({"flare_height_dev_ft", "point_error_ft", "nr_dev_pct"})
 HIGHER_IS_BETTER = frozenset({"score"})
+# The attempt field behind each metric that a recorded track can measure (rotor RPM and the score cannot be).
+MEASURED_FIELD = {"touchdown_speed_kt": "touchdown_speed_kt", "flare_height_dev_ft": "flare_height_ft",
+                  "point_error_ft": "point_error_ft"}
+SOURCES = ("all", "measured")
 # The part of the stored score whose tolerance scales each metric's "steady" band.
 TOLERANCE_PART = {
     "touchdown_speed_kt": "touchdown_speed",
@@ -54,6 +58,8 @@ class AttemptPoint:
     satisfactory: bool
     within_tolerances: bool
     standard_id: int | None
+    # Attempt fields whose value was measured from a recorded track (not typed from memory).
+    measured: frozenset[str] = frozenset()
 
 
 @dataclass(frozen=True)
@@ -71,6 +77,8 @@ class MetricTrend:
     slope_per_attempt: float | None
     direction: str
     tolerance: float | None
+    # Beside each value: was it measured from a recorded track?
+    measured: list[bool] = field(default_factory=list)
 
 
 @dataclass(frozen=True)
@@ -124,9 +132,22 @@ def nr_deviation_pct(worst_reading_pct: float | None, deviation_pct: float | Non
     return -deviation_pct if worst_reading_pct < NORMAL_NR_PCT else deviation_pct
 
 
-def metric_trend(name: str, points: list[AttemptPoint]) -> MetricTrend:
-    """EWMA chart (NIST 6.3.2.4), Theil-Sen slope and direction of one metric over the attempts."""
-    recorded = [(p, p.values[name]) for p in points if p.values[name] is not None]
+def still_measured(measured: dict | None, current: dict[str, float | None]) -> frozenset[str]:
+    """Fields whose stored value is still the measured one (a typed change wins)."""
+    return frozenset(name for name, entry in (measured or {}).items()
+                     if current.get(name) is not None and entry.get("value") is not None
+                     and abs(current[name] - entry["value"]) <= 1e-9)
+
+
+def is_measured(name: str, point: AttemptPoint) -> bool:
+    return MEASURED_FIELD.get(name) in point.measured
+
+
+def metric_trend(name: str, points: list[AttemptPoint], source: str = "all") -> MetricTrend:
+    """EWMA chart (NIST 6.3.2.4), Theil-Sen slope and direction of one metric over the attempts; with
+    `source` "measured", over the values measured from recorded tracks only."""
+    recorded = [(p, p.values[name]) for p in points
+                if p.values[name] is not None and (source == "all" or is_measured(name, p))]
     values = [float(v) for _, v in recorded]
     tolerance = next((p.tolerances[name] for p, _ in reversed(recorded) if p.tolerances[name] is not None),
                      None)
@@ -143,17 +164,17 @@ def metric_trend(name: str, points: list[AttemptPoint]) -> MetricTrend:
         slope_per_attempt=slope,
         direction=direction(judged_slope, len(values), lower_is_better=name not in HIGHER_IS_BETTER,
                             steady_band=steady_band),
-        tolerance=tolerance,
+        tolerance=tolerance, measured=[is_measured(name, p) for p, _ in recorded],
     )
 
 
 def kind_trend(*, maneuver: str, termination: str, points: list[AttemptPoint], standard: StandardUsed,
-               as_of: date, metrics: tuple[str, ...] = METRICS) -> KindTrend:
+               as_of: date, metrics: tuple[str, ...] = METRICS, source: str = "all") -> KindTrend:
     """Trends, trend score, state and forecast of one kind from its attempts in flight order."""
     flown = [p for p in points if p.flown_on <= as_of]
     result = KindTrend(maneuver=maneuver, termination=termination, as_of=as_of, standard=standard,
                        attempts=len(flown), points=flown)
-    result.metrics = {name: metric_trend(name, flown) for name in metrics}
+    result.metrics = {name: metric_trend(name, flown, source) for name in metrics}
     if not flown:
         return result
     summaries = [

@@ -44,5 +44,8 @@ class Site(Base):
     elevation_ft: Mapped[float] = mapped_column(Float)
     # Landing directions in degrees, e.g. [90, 270] for a 09/27 strip.
     landing_dirs_deg: Mapped[list] = mapped_column(JSON, default=list)
+    # The aim point of the practice landings (WGS 84), for distances measured from a recorded track.
+    aim_lat_deg: Mapped[float | None] = mapped_column(Float)
+    aim_lon_deg: Mapped[float | None] = mapped_column(Float)
     # A site no longer used is kept for the records flown there, but not offered for new sorties.
     active: Mapped[bool] = mapped_column(Boolean, default=True)

@@ -79,6 +79,9 @@ class SiteCreate(BaseModel):
     name: str = Field(min_length=1, max_length=120)
     elevation_ft: float = Field(ge=-1500, le=20000)
     landing_dirs_deg: list[float] = Field(default_factory=list)
+    # The aim point of practice landings, WGS 84 degrees; both or neither.
+    aim_lat_deg: float | None = Field(default=None, ge=-90, le=90)
+    aim_lon_deg: float | None = Field(default=None, ge=-180, le=180)
 
     @field_validator("landing_dirs_deg")
     @classmethod
@@ -86,6 +89,12 @@ class SiteCreate(BaseModel):
         if any(not 0 <= d <= 360 for d in dirs):
             raise ValueError("landing directions are degrees from 0 to 360")
         return dirs
+
+    @model_validator(mode="after")
+    def _aim_point_whole(self):
+        if (self.aim_lat_deg is None) != (self.aim_lon_deg is None):
+            raise ValueError("give the aim point as both aim_lat_deg and aim_lon_deg, or neither")
+        return self
 
 
 class SiteRead(SiteCreate):

@@ -38,6 +38,7 @@ def attempt_read(attempt: Attempt) -> AttemptRead:
         parts=attempt.parts, flags=attempt.flags, satisfactory=attempt.satisfactory,
         within_tolerances=attempt.within_tolerances, expected_flare_band_ft=band,
         headwind_kt=attempt.headwind_kt, crosswind_kt=attempt.crosswind_kt, standard_id=attempt.standard_id,
+        measured=attempt.measured_fields, measured_uncertainty=attempt.measured_uncertainty,
     )
 
 

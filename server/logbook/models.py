@@ -1,7 +1,8 @@
-"""Tables for sorties, attempts and signatures."""
+"""Tables for sorties, attempts, signatures and the recorded tracks kept with sorties."""
+import math
 from datetime import date, datetime
 
-from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, String, Text
+from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Index, Integer, LargeBinary, String, Text, text
 from sqlalchemy.orm import Mapped, mapped_column, relationship
 
 from server.db import Base
@@ -106,11 +107,30 @@ class Attempt(Base):
     flags: Mapped[list] = mapped_column(JSON, default=list)
     satisfactory: Mapped[bool] = mapped_column(Boolean, default=False)
     within_tolerances: Mapped[bool] = mapped_column(Boolean, default=False)
+    # Figures taken from a recorded track: {field: {value, uncertainty, track_id, track_sha256, detection}}.
+    # A figure counts as measured while the stored value is still the measured one; typing another wins.
+    measured: Mapped[dict] = mapped_column(JSON, default=dict, server_default=text("'{}'"))
 
     created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     sortie: Mapped[Sortie] = relationship(back_populates="attempts")
 
+    @property
+    def measured_fields(self) -> list[str]:
+        """Fields whose stored value is still the one measured from a track (a typed change wins)."""
+        return sorted(name for name, entry in (self.measured or {}).items()
+                      if getattr(self, name, None) is not None and entry.get("value") is not None
+                      and math.isclose(getattr(self, name), entry["value"], abs_tol=1e-9))
+
+    @property
+    def measured_uncertainty(self) -> dict[str, float]:
+        return {name: self.measured[name]["uncertainty"] for name in self.measured_fields
+                if self.measured[name].get("uncertainty") is not None}
+
+    @property
+    def track_sha256s(self) -> list[str]:
+        """The recorded tracks this attempt's measured figures come from."""
+        return sorted({self.measured[name]["track_sha256"] for name in self.measured_fields})
 
 MEANINGS = {
     "instructor_certifies": (
@@ -133,3 +153,28 @@ class Signature(Base):
     statement: Mapped[str] = mapped_column(Text)
     content_sha256: Mapped[str] = mapped_column(String(64))
     signed_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
+
+
+class Track(Base):
+    """A recorded flight track as uploaded, part of the sortie's record: kept byte for byte, with its SHA-256."""
+
+    __tablename__ = "tracks"
+
+    id: Mapped[int] = mapped_column(primary_key=True)
+    sortie_id: Mapped[int] = mapped_column(ForeignKey("sorties.id", ondelete="CASCADE"), index=True)
+    filename: Mapped[str] = mapped_column(String(255), default="")
+    format: Mapped[str] = mapped_column(String(8))
+    sha256: Mapped[str] = mapped_column(String(64))
+    size_bytes: Mapped[int] = mapped_column(Integer)
+    raw: Mapped[bytes] = mapped_column(LargeBinary, deferred=True)
+    points: Mapped[int] = mapped_column(Integer)
+    sample_rate_hz: Mapped[float] = mapped_column(Float)
+    started_at: Mapped[datetime] = mapped_column(UTCDateTime)
+    ended_at: Mapped[datetime] = mapped_column(UTCDateTime)
+    has_doppler_speed: Mapped[bool] = mapped_column(Boolean)
+    ground_ref: Mapped[str] = mapped_column(String(24))  # on_ground_readings or site_elevation
+    # The detections as measured when imported (figures, uncertainties, reasons, the profile for the chart).
+    detections: Mapped[list] = mapped_column(JSON, default=list)
+    notes: Mapped[list] = mapped_column(JSON, default=list)
+    uploaded_by_id: Mapped[int] = mapped_column(ForeignKey("people.id"))
+    created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)

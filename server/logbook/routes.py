@@ -14,6 +14,7 @@ from server.logbook import access, derive
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, MEANINGS, Sortie
 from server.logbook.schemas import AttemptFields, ConditionsRequest, SortieCreate
+from server.logbook.track_views import sheet_tracks
 from server.people import service as people
 from server.people.deps import PageUser, require_role
 from server.people.models import Person
@@ -207,6 +208,7 @@ def _sheet_context(db, person: Person, sortie: Sortie) -> dict:
         "sign_statement": MEANINGS["instructor_certifies"],
         "can_amend": state in ("signed", "acknowledged") and is_editor,
         "can_acknowledge": state == "signed" and sortie.pilot_id == person.id,
+        "tracks": sheet_tracks(db, sortie=sortie),
         **_new_attempt_context(sortie, last),
     }
 

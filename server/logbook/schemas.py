@@ -137,6 +137,9 @@ class AttemptRead(AttemptFields):
     headwind_kt: float | None
     crosswind_kt: float | None
     standard_id: int | None
+    # Fields measured from a recorded track (the rest were observed and typed), with their 95 % uncertainty.
+    measured: list[str] = Field(default_factory=list)
+    measured_uncertainty: dict[str, float] = Field(default_factory=dict)
 
 
 class SignatureRead(BaseModel):

@@ -276,12 +276,19 @@ def sortie_record(sortie: Sortie) -> dict:
     record["id"] = sortie.id
     record["flown_at"] = sortie.flown_at.isoformat()
     record["attempts"] = [attempt_record(a) for a in sorted(sortie.attempts, key=lambda a: a.sequence)]
+    # The recorded tracks that figures were measured from are part of what is signed (only when there are
+    # any, so records signed before tracks existed keep their content hash).
+    used = sorted({sha for a in sortie.attempts for sha in a.track_sha256s})
+    if used:
+        record["track_sha256s"] = used
     return record
 
 
 def attempt_record(attempt: Attempt) -> dict:
     record = {name: getattr(attempt, name) for name in ATTEMPT_RECORD_FIELDS}
     record["id"] = attempt.id
+    if attempt.measured_fields:
+        record["measured"] = {name: attempt.measured[name] for name in attempt.measured_fields}
     return record
 
 
@@ -360,7 +367,7 @@ def amend_sortie(session: Session, *, actor: Person, sortie: Sortie, reason: str
                         standard_id=old.standard_id, headwind_kt=old.headwind_kt, crosswind_kt=old.crosswind_kt,
                         flare_band_low_ft=old.flare_band_low_ft, flare_band_high_ft=old.flare_band_high_ft,
                         score=old.score, parts=old.parts, flags=old.flags, satisfactory=old.satisfactory,
-                        within_tolerances=old.within_tolerances, **values)
+                        within_tolerances=old.within_tolerances, measured=dict(old.measured or {}), **values)
         session.add(clone)
     session.flush()
     session.refresh(copy)

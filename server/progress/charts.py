@@ -4,11 +4,12 @@ Pure drawing: plain numbers and words in, an SVG string out. Colours are present
 style attributes), so the chart obeys a strict content security policy and prints as drawn. Every
 attempt is a shape as well as a colour: a filled circle inside the band, a hollow diamond outside it.
 """
-import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date
 from html import escape
+
+from server.compute.chart_ticks import nice_ticks
 
 WIDTH, HEIGHT = 640, 280
 LEFT, RIGHT, TOP, BOTTOM = 64, 16, 16, 52
@@ -31,26 +32,10 @@ class ChartData:
     ewma: Sequence[float]
     ucl: Sequence[float]
     lcl: Sequence[float]
+    # Beside each value: measured from a recorded track (drawn as a square) rather than observed.
+    measured: Sequence[bool] = ()
     first_number: int = 1  # the number of the first value shown among the pilot's (the chart shows the last ones)
     count_noun: str = "attempt"  # what the x axis counts: attempts with this figure recorded
-
-
-def nice_ticks(low: float, high: float, count: int = 5) -> list[float]:
-    """Round tick values (1, 2 or 5 times a power of ten) covering low..high."""
-    if high <= low:
-        high = low + 1.0
-    raw_step = (high - low) / max(count - 1, 1)
-    magnitude = 10 ** math.floor(math.log10(raw_step))
-    step = next(m * magnitude for m in (1, 2, 5, 10) if m * magnitude >= raw_step)
-    first = math.floor(low / step) * step
-    ticks = []
-    value = first
-    while value <= high + step * 1e-9:
-        ticks.append(round(value, 10))
-        value += step
-    if ticks[-1] < high:
-        ticks.append(round(ticks[-1] + step, 10))
-    return ticks
 
 
 def _fmt(value: float) -> str:
@@ -121,11 +106,20 @@ def trend_chart_svg(data: ChartData) -> str:
     ewma_points = [(x_at(i), y_at(v)) for i, v in enumerate(data.ewma)]
     parts.append(f'<polyline class="ewma" points="{_path(ewma_points)}" fill="none" stroke="{EWMA_COLOUR}" '
                  f'stroke-width="3"/>')
-    # Each attempt: a circle inside the band, a hollow diamond outside it.
+    # Each attempt: a circle inside the band, a hollow diamond outside it; a figure measured from a
+    # recorded track is a square (filled inside, hollow outside).
     for i, value in enumerate(data.values):
         x, y = x_at(i), y_at(value)
-        label = f"{data.count_noun.capitalize()} #{data.first_number + i}, {data.dates[i].isoformat()}: {_fmt(value)} {data.unit}"
-        if _inside(value, data.band_low[i], data.band_high[i]):
+        label = (f"{data.count_noun.capitalize()} #{data.first_number + i}, {data.dates[i].isoformat()}: "
+                 f"{_fmt(value)} {data.unit}")
+        inside = _inside(value, data.band_low[i], data.band_high[i])
+        if i < len(data.measured) and data.measured[i]:
+            where = "inside" if inside else "outside"
+            fill, stroke = (INK, INK) if inside else ("#ffffff", OUTSIDE_COLOUR)
+            parts.append(f'<rect class="attempt measured {where}" x="{x - 5:.1f}" y="{y - 5:.1f}" width="10" '
+                         f'height="10" fill="{fill}" stroke="{stroke}" stroke-width="2"><title>{escape(label)}, '
+                         f'measured from a recorded track, {where} the band</title></rect>')
+        elif inside:
             parts.append(f'<circle class="attempt inside" cx="{x:.1f}" cy="{y:.1f}" r="4" fill="{INK}">'
                          f'<title>{escape(label)}, inside the band</title></circle>')
         else:

@@ -86,6 +86,7 @@ class ProgressFile:
     needed_next: list[str] = field(default_factory=list)
     total_attempts: int = 0
     chart_window: int = CHART_WINDOW
+    source: str = "all"
 
 
 def _forecast_words(trend: KindTrend) -> str:
@@ -207,13 +208,15 @@ def touchdown_chart(view: KindView) -> ChartData:
         values=_window(metric.values), dates=_window(metric.flown_on),
         band_low=[0.0 if t is not None else None for t in _window(tolerances)], band_high=_window(tolerances),
         ewma=_window(metric.ewma), ucl=_window(metric.ucl), lcl=_window(metric.lcl),
+        measured=_window(metric.measured),
         first_number=len(metric.values) - len(_window(metric.values)) + 1, count_noun="touchdown",
     )
 
 
-def flare_chart(view: KindView) -> ChartData:
+def flare_chart(view: KindView, source: str = "all") -> ChartData:
     """Flare height AGL against each attempt's expected band (it moves with density altitude and weight)."""
-    recorded = [p for p in view.trend.points if p.flare_height_ft is not None]
+    recorded = [p for p in view.trend.points if p.flare_height_ft is not None
+                and (source == "all" or "flare_height_ft" in p.measured)]
     values = [p.flare_height_ft for p in recorded]
     chart = ewma_chart(values) if values else None
     shown = _window(recorded)
@@ -224,8 +227,9 @@ def flare_chart(view: KindView) -> ChartData:
         band_low=[p.flare_band_ft[0] if p.flare_band_ft else None for p in shown],
         band_high=[p.flare_band_ft[1] if p.flare_band_ft else None for p in shown],
         ewma=_window(chart.ewma) if chart else [], ucl=_window(chart.ucl) if chart else [],
-        lcl=_window(chart.lcl) if chart else [], first_number=len(values) - len(_window(values)) + 1,
-        count_noun="flare",
+        lcl=_window(chart.lcl) if chart else [],
+        measured=["flare_height_ft" in p.measured for p in shown],
+        first_number=len(values) - len(_window(values)) + 1, count_noun="flare",
     )
 
 
@@ -252,13 +256,13 @@ def _needed_next(program: programs.ProgramProgress | None, kinds: list[KindView]
 
 
 def build(session: Session, *, viewer: Person, pilot_id: int, selected_key: str | None = None,
-          as_of: date | None = None) -> ProgressFile:
+          as_of: date | None = None, source: str = "all") -> ProgressFile:
     """Everything the progress file shows, from one read of the pilot's counted attempts."""
     pilot = service.viewable_pilot(session, viewer=viewer, pilot_id=pilot_id)
     as_of = as_of or people.school_today(session)
     points = service.read_points(session, pilot_id=pilot_id)
     kinds = [kind_view(t) for t in service.all_trends(session, pilot_id=pilot_id, as_of=as_of, points=points,
-                                                      metrics=PAGE_METRICS)]
+                                                      metrics=PAGE_METRICS, source=source)]
     enrolment = syllabi.active_enrolment(session, student_id=pilot_id)
     program = programs.program_progress(session, enrolment=enrolment, points=points) if enrolment else None
     selected = next((k for k in kinds if k.key == selected_key), None)
@@ -266,10 +270,10 @@ def build(session: Session, *, viewer: Person, pilot_id: int, selected_key: str 
         selected = max(kinds, key=lambda k: (k.trend.last_flown_on, k.trend.attempts))
     charts = []
     if selected is not None:
-        for data, words in ((touchdown_chart(selected), touchdown_words), (flare_chart(selected), flare_words)):
+        for data, words in ((touchdown_chart(selected), touchdown_words), (flare_chart(selected, source), flare_words)):
             charts.append(ChartView(svg=trend_chart_svg(data), summary=describe(data), words=words(data)))
     return ProgressFile(
         pilot=pilot, as_of=as_of, program=program, kinds=kinds, selected=selected, charts=charts,
         recent=list(reversed(points[-RECENT_ATTEMPTS:])), needed_next=_needed_next(program, kinds),
-        total_attempts=len(points),
+        total_attempts=len(points), source=source,
     )

@@ -26,9 +26,10 @@ def progress_index(request: Request, db: DbSession, person: PageUser):
     return render(request, "progress/progress_index.html", {"person": person, "pilots": pilots})
 
 
-def file_context(db, person: Person, pilot_id: int, kind: str | None = None) -> dict:
+def file_context(db, person: Person, pilot_id: int, kind: str | None = None, source: str = "all") -> dict:
     """What the progress file template needs, including which sign-offs the viewer may give."""
-    built = progress_file.build(db, viewer=person, pilot_id=pilot_id, selected_key=kind)
+    built = progress_file.build(db, viewer=person, pilot_id=pilot_id, selected_key=kind,
+                                source="measured" if source == "measured" else "all")
     enrolment = built.program.enrolment if built.program else None
     waiting = logbook.list_sorties(db, viewer=person, pilot_id=pilot_id, state="signed", limit=WAITING_SHOWN + 1)
     return {
@@ -42,7 +43,9 @@ def file_context(db, person: Person, pilot_id: int, kind: str | None = None) -> 
 
 
 @router.get("/people/{pilot_id}/progress", name="progress_file")
-def progress_page(pilot_id: int, request: Request, db: DbSession, person: PageUser, kind: str | None = None):
-    """The progress file; with htmx and a kind, only that kind's charts."""
-    return render(request, "progress/progress_file.html", file_context(db, person, pilot_id, kind),
+def progress_page(pilot_id: int, request: Request, db: DbSession, person: PageUser, kind: str | None = None,
+                  source: str = "all"):
+    """The progress file; with htmx and a kind, only that kind's charts; `source=measured` charts only the
+    figures measured from recorded tracks."""
+    return render(request, "progress/progress_file.html", file_context(db, person, pilot_id, kind, source),
                   fragment="progress/_charts.html")

@@ -22,6 +22,8 @@ class MetricTrendRead(BaseModel):
         description="improving, steady, degrading or too_few (under 5 values); for signed metrics the size "
                     "of the deviation is judged")
     tolerance: float | None = Field(description="the latest tolerance of this metric, in its unit")
+    measured: list[bool] = Field(default_factory=list,
+                                 description="beside each value: true where it was measured from a recorded track")
 
 
 class StandardRead(BaseModel):
@@ -48,3 +50,5 @@ class TrendsRead(BaseModel):
         description="attempts still needed to be at standard at the current rate; 0 when at standard, null "
                     "when not improving")
     standard: StandardRead
+    source: Literal["all", "measured"] = Field(
+        default="all", description="all recorded figures, or only those measured from recorded tracks")

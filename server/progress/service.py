@@ -17,6 +17,7 @@ from server.compute.proficiency import (
     flare_deviation_ft,
     kind_trend,
     nr_deviation_pct,
+    still_measured,
 )
 from server.errors import NotFound
 from server.logbook import access
@@ -53,7 +54,7 @@ def read_points(session: Session, *, pilot_id: int, maneuver: str | None = None,
             Attempt.id, Attempt.sortie_id, Attempt.flown_on, Attempt.maneuver, Attempt.termination,
             Attempt.touchdown_speed_kt, Attempt.flare_height_ft, Attempt.flare_band_low_ft,
             Attempt.flare_band_high_ft, Attempt.point_error_ft, Attempt.score, Attempt.satisfactory,
-            Attempt.within_tolerances, Attempt.standard_id,
+            Attempt.within_tolerances, Attempt.standard_id, Attempt.measured,
             _part("touchdown_speed", "subscore"), _part("flare_height", "subscore"),
             _part("rotor_rpm", "value"), _part("rotor_rpm", "deviation"),
             *(_part(part, "tolerance") for part in TOLERANCE_PART.values()),
@@ -71,7 +72,7 @@ def read_points(session: Session, *, pilot_id: int, maneuver: str | None = None,
 
 def _point(row) -> AttemptPoint:
     (attempt_id, sortie_id, flown_on, maneuver, termination, touchdown, flare, band_low, band_high, point,
-     score, satisfactory, within, standard_id, touchdown_sub, flare_sub, nr_value, nr_deviation,
+     score, satisfactory, within, standard_id, measured, touchdown_sub, flare_sub, nr_value, nr_deviation,
      *tolerances) = row
     band = (band_low, band_high) if band_low is not None and band_high is not None else None
     return AttemptPoint(
@@ -88,6 +89,8 @@ def _point(row) -> AttemptPoint:
         flare_height_ft=flare, flare_band_ft=band, touchdown_subscore=touchdown_sub,
         flare_subscore=flare_sub, satisfactory=bool(satisfactory), within_tolerances=bool(within),
         standard_id=standard_id,
+        measured=still_measured(measured, {"touchdown_speed_kt": touchdown, "flare_height_ft": flare,
+                                           "point_error_ft": point}),
     )
 
 
@@ -116,16 +119,18 @@ def viewable_pilot(session: Session, *, viewer: Person, pilot_id: int) -> Person
 
 
 def trends_for(session: Session, *, pilot_id: int, maneuver: str, termination: str,
-               as_of: date | None = None) -> KindTrend:
+               as_of: date | None = None, source: str = "all") -> KindTrend:
     """The trends of one maneuver and termination for a pilot."""
     as_of = as_of or people.school_today(session)
     points = read_points(session, pilot_id=pilot_id, maneuver=maneuver, termination=termination)
     standard = standard_used(session, pilot_id=pilot_id, maneuver=maneuver, points=points)
-    return kind_trend(maneuver=maneuver, termination=termination, points=points, standard=standard, as_of=as_of)
+    return kind_trend(maneuver=maneuver, termination=termination, points=points, standard=standard, as_of=as_of,
+                      source=source)
 
 
 def all_trends(session: Session, *, pilot_id: int, as_of: date | None = None,
-               points: list[AttemptPoint] | None = None, metrics: tuple[str, ...] = METRICS) -> list[KindTrend]:
+               points: list[AttemptPoint] | None = None, metrics: tuple[str, ...] = METRICS,
+               source: str = "all") -> list[KindTrend]:
     """Trends of every kind the pilot has flown, in one read of the records, in syllabus order."""
     as_of = as_of or people.school_today(session)
     if points is None:
@@ -136,7 +141,7 @@ def all_trends(session: Session, *, pilot_id: int, as_of: date | None = None,
     order = {kind: i for i, kind in enumerate((m, t) for m in MANEUVERS for t in TERMINATIONS)}
     return [
         kind_trend(maneuver=maneuver, termination=termination, points=by_kind[(maneuver, termination)],
-                   as_of=as_of, metrics=metrics,
+                   as_of=as_of, metrics=metrics, source=source,
                    standard=standard_used(session, pilot_id=pilot_id, maneuver=maneuver,
                                           points=by_kind[(maneuver, termination)]))
         for maneuver, termination in sorted(by_kind, key=lambda kind: order.get(kind, len(order)))

@@ -1,4 +1,5 @@
 """`flarebook export`: every record as one JSON document, without secrets."""
+import base64
 import json
 from datetime import date, datetime
 
@@ -18,6 +19,8 @@ SKIPPED_COLUMNS = {"password_hash"}
 def _plain(value):
     if isinstance(value, datetime | date):
         return value.isoformat()
+    if isinstance(value, bytes):  # a recorded track's file, as uploaded (RFC 4648 base64)
+        return base64.b64encode(value).decode("ascii")
     raise TypeError(f"cannot export {type(value).__name__}")
 
 

@@ -9,7 +9,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from html import escape
 
-from server.progress.charts import nice_ticks
+from server.compute.chart_ticks import nice_ticks
 
 WIDTH, HEIGHT = 960, 300
 LEFT, RIGHT, TOP, BOTTOM = 64, 12, 24, 70

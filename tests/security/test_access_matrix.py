@@ -17,6 +17,7 @@ from fastapi.testclient import TestClient
 from server.app import create_app
 from server.config import Settings
 from server.logbook import service as logbook
+from server.logbook.models import Track
 from server.logbook.schemas import AttemptFields
 from server.people import service as people
 from server.people.models import Person
@@ -156,6 +157,13 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("POST", "/sorties/{sortie_id}/amend"): CHANGE_PAGE,
     ("GET", "/sorties/{sortie_id}/history"): page(),
 
+    # Recorded tracks: seen with their sortie; imported and accepted by its instructor (tests/logbook/test_tracks_api.py).
+    ("POST", "/api/v1/sorties/{sortie_id}/tracks"): CHANGE_API,
+    ("GET", "/api/v1/tracks/{track_id}"): api(),
+    ("POST", "/api/v1/tracks/{track_id}/detections/{index}/accept"): CHANGE_API,
+    ("POST", "/sorties/{sortie_id}/tracks"): CHANGE_PAGE,
+    ("POST", "/tracks/{track_id}/detections/{index}/accept"): CHANGE_PAGE,
+
     # Progress, programs and standards.
     ("GET", "/api/v1/people/{pilot_id}/trends"): api(),
     ("GET", "/api/v1/programs"): api(),
@@ -215,7 +223,7 @@ ROUTES: dict[tuple[str, str], Access] = {
 QUERIES = {"/api/v1/people/{pilot_id}/trends": "?maneuver=straight_in&termination=touchdown"}
 
 # Path parameters naming a pilot's records: a student given the other student's ids must get nothing.
-PILOT_SCOPED = {"person_id", "pilot_id", "sortie_id", "attempt_id", "enrolment_id"}
+PILOT_SCOPED = {"person_id", "pilot_id", "sortie_id", "attempt_id", "enrolment_id", "track_id"}
 
 
 def app_routes() -> set[tuple[str, str]]:
@@ -241,6 +249,16 @@ def fill(path: str, ids: dict) -> str:
     return re.sub(r"\{(\w+)\}", lambda m: str(ids[m.group(1)]), path) + QUERIES.get(path, "")
 
 
+def _stored_track(db, sortie, uploader) -> int:
+    """A track row of a sortie, as an import would leave it (the import itself is tested in tests/logbook/test_tracks_api.py)."""
+    track = Track(sortie_id=sortie.id, format="csv", sha256="0" * 64, size_bytes=1, raw=b"-", points=10,
+                  sample_rate_hz=1.0, started_at=sortie.flown_at, ended_at=sortie.flown_at, has_doppler_speed=False,
+                  ground_ref="site_elevation", detections=[], notes=[], uploaded_by_id=uploader.id)
+    db.add(track)
+    db.commit()
+    return track.id
+
+
 @pytest.fixture
 def school(app, db, world):
     """The invented school's records as seen by the matrix: ids of own and of someone else's records."""
@@ -256,6 +274,8 @@ def school(app, db, world):
     db.commit()
     db.refresh(own)
     db.refresh(theirs)
+    own_track, their_track = (_stored_track(db, sortie, uploader) for sortie, uploader in
+                              ((own, world.instructor), (theirs, world.other_instructor)))
     token = people.issue_token(db, person=db.get(Person, world.chief.id))
     db.commit()
     chief = TestClient(app, base_url="http://testserver", headers={"Authorization": f"Bearer {token}"})
@@ -277,14 +297,15 @@ def school(app, db, world):
     rule = made(chief.post("/api/v1/rules", json={"name": "Matrix rule", "window_days": 90, "min_count": 1}))
     feed = made(chief.post("/api/v1/calendar-feeds", json={"person_id": world.student.id}))
     secret = re.search(r"/calendar/([^/]+)\.ics", feed["url"]).group(1)
-    common = {"type_id": world.helicopter.id, "aircraft_id": world.aircraft.id, "site_id": world.site.id, "program_id": program["id"], "lesson_id": lesson_id,
+    common = {"type_id": world.helicopter.id, "aircraft_id": world.aircraft.id, "site_id": world.site.id,
+              "program_id": program["id"], "lesson_id": lesson_id, "index": 1,
               "standard_id": standard["id"], "rule_id": rule["id"], "feed_id": feed["id"], "secret": secret}
     return {
         "own": common | {"person_id": world.student.id, "pilot_id": world.student.id, "sortie_id": own.id,
-                         "attempt_id": own.attempts[0].id, "enrolment_id": enrol["id"]},
+                         "attempt_id": own.attempts[0].id, "enrolment_id": enrol["id"], "track_id": own_track},
         "theirs": common | {"person_id": world.other_student.id, "pilot_id": world.other_student.id,
                             "sortie_id": theirs.id, "attempt_id": theirs.attempts[0].id,
-                            "enrolment_id": their_enrol["id"]},
+                            "enrolment_id": their_enrol["id"], "track_id": their_track},
         "admin": admin,
     }
 
