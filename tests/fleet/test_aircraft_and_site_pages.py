@@ -96,3 +96,22 @@ def test_the_type_page_picks_the_newest_sortie_with_something_to_plot(chief_clie
     assert chosen["value"] == str(plotted.id)
     labels = [o.get_text() for o in page.find("select", attrs={"name": "sortie_id"}).find_all("option")]
     assert any(label.endswith("· 1 attempt") for label in labels)  # not "1 attempts"
+
+
+def test_a_sites_aim_point_is_set_and_both_halves_are_needed(chief_client, db, world):
+    """WGS 84 decimal degrees; latitude within ±90 (common practice)."""
+    answer = chief_client.form_post(f"/setup/sites/{world.site.id}/edit", {
+        "name": world.site.name, "elevation_ft": "500", "landing_dirs_deg": "090, 270",
+        "aim_lat_deg": "51.50123", "aim_lon_deg": "-1.25"})
+    assert answer.status_code == 303
+    db.expire_all()
+    site = db.get(Site, world.site.id)
+    assert (site.aim_lat_deg, site.aim_lon_deg) == (51.50123, -1.25)
+    listed = {row[0]: row for row in cell_texts(parsed(chief_client.get("/setup/sites")).find("table"))}
+    assert listed[world.site.name][3] == "51.50123, -1.25000"
+    half = chief_client.form_post(f"/setup/sites/{world.site.id}/edit", {
+        "name": world.site.name, "elevation_ft": "500", "aim_lat_deg": "51.5"})
+    assert half.status_code == 422 and "both aim_lat_deg and aim_lon_deg" in parsed(half).find(role="alert").get_text()
+    far = chief_client.form_post(f"/setup/sites/{world.site.id}/edit", {
+        "name": world.site.name, "elevation_ft": "500", "aim_lat_deg": "95", "aim_lon_deg": "0"})
+    assert far.status_code == 422 and parsed(far).find("input", attrs={"name": "aim_lat_deg"})["aria-invalid"] == "true"
