@@ -23,7 +23,7 @@ def test_a_chief_pilot_adds_and_renames_an_aircraft(chief_client, db, world):
     assert renamed.status_code == 303
     db.expire_all()
     assert db.get(Aircraft, added.id).registration == "TS-WRC"
-    assert db.query(AuditEvent).filter_by(entity="aircraft", entity_id=added.id).count() == 2
+    assert db.query(AuditEvent).filter_by(entity="aircraft", entity_id=str(added.id)).count() == 2
 
 
 def test_a_refused_aircraft_says_why_and_keeps_the_entry(chief_client, db, world):

@@ -51,7 +51,7 @@ def test_a_chief_pilot_adds_a_student_who_can_then_sign_in(app, chief_client, db
     assert page.find("form", action=f"http://testserver/setup/people/{added.id}/enrol") is not None
     assert page.find("a", href=f"/setup/people/{added.id}/reset-password") is not None
     sign_in(app, "nia@school.example", "first-password-9")  # signs in through the real form
-    created = db.query(AuditEvent).filter_by(entity="person", entity_id=added.id, action="create").one()
+    created = db.query(AuditEvent).filter_by(entity="person", entity_id=str(added.id), action="create").one()
     assert created.actor_id == world.chief.id
 
 
