@@ -3,6 +3,7 @@ from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import FileResponse, JSONResponse, RedirectResponse
 from fastapi.staticfiles import StaticFiles
+from starlette.exceptions import HTTPException as StarletteHTTPException
 from starlette.middleware.gzip import GZipMiddleware
 
 from server.bad_input import refuse_out_of_range
@@ -90,6 +91,12 @@ def _favicon():
                         headers={"Cache-Control": "public, max-age=86400"})
 
 
+HTTP_ERROR_WORDS = {
+    404: "There is no page at this address. It may have been mistyped, or the record was discarded.",
+    405: "This address cannot be used that way. Go back and use the page's own buttons.",
+}
+
+
 def readable_errors(exc: RequestValidationError) -> list[dict]:
     """Validation errors as field and sentence, without echoing the input back."""
     out = []
@@ -117,6 +124,15 @@ def _add_error_handlers(app: FastAPI) -> None:
             return JSONResponse({"detail": summary, "errors": errors}, status_code=422)
         return render(request, "error.html", {"message": summary, "status": 422}, status_code=422,
                       fragment="_error.html")
+
+    @app.exception_handler(StarletteHTTPException)
+    async def _http_error(request: Request, exc: StarletteHTTPException):
+        """Unknown addresses and wrong methods: JSON for the API and scripts, a page for a browser."""
+        if request.url.path.startswith("/api/") or "text/html" not in request.headers.get("accept", ""):
+            return JSONResponse({"detail": exc.detail}, status_code=exc.status_code, headers=exc.headers)
+        message = HTTP_ERROR_WORDS.get(exc.status_code, "That could not be done.")
+        return render(request, "error.html", {"message": message, "status": exc.status_code},
+                      status_code=exc.status_code, fragment="_error.html")
 
     @app.exception_handler(SignInRequired)
     async def _sign_in(request: Request, exc: SignInRequired):

@@ -11,6 +11,36 @@ def blank_to_none(form, names) -> dict:
     return values
 
 
+def _figure(value) -> str:
+    return f"{value:,g}" if isinstance(value, (int, float)) else str(value)
+
+
+def plain_words(item: dict) -> str:
+    """A validator's error as a person at the practice area reads it, not as pydantic words it."""
+    kind, ctx = item.get("type", ""), item.get("ctx") or {}
+    if kind == "missing":
+        return "Required."
+    if kind in ("float_parsing", "float_type", "int_parsing", "int_type", "int_from_float", "finite_number"):
+        return "Give a number, such as 65."
+    if kind in ("greater_than_equal", "greater_than"):
+        return f"At least {_figure(ctx.get('ge', ctx.get('gt')))}."
+    if kind in ("less_than_equal", "less_than"):
+        return f"At most {_figure(ctx.get('le', ctx.get('lt')))}."
+    if kind in ("literal_error", "enum"):
+        return "Pick one of the choices shown."
+    if kind.startswith(("datetime", "date", "timezone")):
+        return "Give the date and time, such as 20/11/2026 10:30."
+    if kind == "string_too_long":
+        length = len(item["input"]) if isinstance(item.get("input"), str) else None
+        over = f" (this has {length:,})" if length is not None else ""
+        return f"At most {ctx.get('max_length', 0):,} characters{over}."
+    if kind == "string_too_short":
+        return f"At least {ctx.get('min_length', 1):,} characters."
+    if kind in ("bool_parsing", "bool_type"):
+        return "Yes or no."
+    return str(item["msg"]).removeprefix("Value error, ")
+
+
 def validate(model: type[BaseModel], values: dict) -> tuple[BaseModel | None, dict[str, str], str | None]:
     """The model, or the errors keyed by field plus a message for errors about the whole form."""
     try:
@@ -19,7 +49,7 @@ def validate(model: type[BaseModel], values: dict) -> tuple[BaseModel | None, di
         by_field: dict[str, str] = {}
         general = []
         for item in error.errors():
-            message = str(item["msg"]).removeprefix("Value error, ")
+            message = plain_words(item)
             location = [str(p) for p in item["loc"]]
             if location and location[0] in values:
                 by_field.setdefault(location[0], message)

@@ -219,7 +219,8 @@ def _raw_parts(
     return {name: tuple(map(float, raw[name])) for name in METRICS if name in raw}
 
 
-def _flags(observation: Observation, limits: TypeLimits, touchdown_max_kt: float) -> list[Flag]:
+def _flags(observation: Observation, limits: TypeLimits, touchdown_max_kt: float,
+           flare_band_ft: tuple[float, float]) -> list[Flag]:
     flags: list[Flag] = []
     low, high = limits.nr_power_off_min_pct, limits.nr_power_off_max_pct
     # Both readings are checked against both limits: a droop typed in the high box is still a droop.
@@ -248,6 +249,15 @@ def _flags(observation: Observation, limits: TypeLimits, touchdown_max_kt: float
             "was inside the height-velocity avoid region."
         )
         flags.append(Flag("hv_avoid", message))
+    flare_ft, band_low_ft = observation.flare_height_ft, flare_band_ft[0]
+    # Common practice: a flare begun low leaves less height to stop the descent before the ground, so any
+    # flare begun below the expected band is worth a word, not only a lower score.
+    if flare_ft is not None and flare_ft < band_low_ft:
+        message = (
+            f"Flare begun at {_fmt(flare_ft)} ft AGL, {_fmt(band_low_ft - flare_ft)} ft below "
+            f"the expected band of {_fmt(flare_band_ft[0])}–{_fmt(flare_band_ft[1])} ft."
+        )
+        flags.append(Flag("low_flare", message))
     touchdown_kt = observation.touchdown_speed_kt
     # A power recovery ends in flight: its groundspeed is scored, but it is no touchdown to flag.
     lands = observation.termination != "power_recovery"
@@ -291,7 +301,7 @@ def score_attempt(
         for name, (value, tol, deviation) in raw.items()
     }
 
-    flags = _flags(observation, limits, _touchdown_max_kt(limits, tolerances))
+    flags = _flags(observation, limits, _touchdown_max_kt(limits, tolerances), flare_band_ft)
 
     score: float | None = None
     if total_weight > 0:

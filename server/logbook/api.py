@@ -99,6 +99,14 @@ def update_sortie(sortie_id: int, data: SortieUpdate, db: DbSession, person: Api
     return sortie_read(db, logbook.update_sortie(db, actor=person, sortie=sortie, data=data))
 
 
+@router.delete("/sorties/{sortie_id}", status_code=204)
+def discard_sortie(sortie_id: int, db: DbSession, person: ApiUser):
+    """Discard a draft started by mistake: its instructor only, never a signed sortie (409)."""
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    logbook.discard_sortie(db, actor=person, sortie=sortie)
+    return Response(status_code=204)
+
+
 @router.post("/sorties/{sortie_id}/sign", response_model=SortieRead)
 def sign_sortie(sortie_id: int, data: SignRequest, db: DbSession, person: ApiUser):
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)

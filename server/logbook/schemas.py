@@ -56,10 +56,11 @@ class SortieCreate(SortieFields):
 
 
 class SortieUpdate(SortieFields):
-    """Fields that may change while a sortie is a draft; who flew and when are kept."""
+    """Fields that may change while a sortie is a draft; its instructor is kept."""
 
     model_config = ConfigDict(extra="forbid")
     flown_at: AwareDatetime | None = None
+    pilot_id: int | None = None
     aircraft_id: int | None = None
     site_id: int | None = None
 

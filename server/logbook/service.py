@@ -204,6 +204,13 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
     fields_set = data.model_fields_set
     if "flown_at" in fields_set and data.flown_at is not None:
         sortie.flown_at = data.flown_at
+    if "pilot_id" in fields_set and data.pilot_id is not None and data.pilot_id != sortie.pilot_id:
+        pilot = session.get(Person, data.pilot_id)
+        if pilot is None or not pilot.active:  # the same rule as starting a sortie
+            raise Invalid("pilot_id does not name an active person.")
+        sortie.pilot_id = pilot.id
+        for attempt in sortie.attempts:
+            attempt.pilot_id = pilot.id
     if "aircraft_id" in fields_set and data.aircraft_id is not None:
         if session.get(Aircraft, data.aircraft_id) is None:
             raise Invalid("aircraft_id does not name an aircraft.")
@@ -214,7 +221,7 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
         sortie.site_id = data.site_id
     _set_conditions(sortie, data, fields_set)
     session.flush()
-    session.expire(sortie, ["aircraft", "site"])
+    session.expire(sortie, ["aircraft", "site", "pilot"])
     derive.apply_conditions(sortie)
     for attempt in sortie.attempts:
         attempt.flown_on = people.local_date(session, sortie.flown_at)
@@ -223,6 +230,19 @@ def update_sortie(session: Session, *, actor: Person, sortie: Sortie, data: Sort
     audit.append(session, actor_id=actor.id, action="edit", entity="sortie", entity_id=sortie.id,
                  before=before, after=sortie_record(sortie))
     return sortie
+
+
+def discard_sortie(session: Session, *, actor: Person, sortie: Sortie) -> None:
+    """Throw away a draft started by mistake; its content stays in the audit chain. Never a signed one."""
+    if sortie.instructor_id != actor.id:
+        raise Forbidden("Only the sortie's instructor can discard it.")
+    if sortie.state != "draft":
+        raise Conflict("A signed sortie is never discarded. Make an amendment with a reason instead.")
+    before = sortie_record(sortie)
+    session.delete(sortie)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="discard", entity="sortie", entity_id=before["id"],
+                 before=before)
 
 
 def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: AttemptFields) -> Attempt:

@@ -82,6 +82,9 @@ def test_sortie_sheet_draft_with_flags_and_an_open_edit_form(page, world, db, ax
     sortie = flagged_sortie(db, world)
     sign_in(page, world.instructor.email)
     page.goto(f"/sorties/{sortie.id}")
+    expect(page.locator(".flag-line")).to_be_visible()
+    assert axe_violations(page, axe_path) == []
+    page.locator("#attempts article.attempt").nth(1).locator("summary").tap()
     expect(page.locator(".flags")).to_be_visible()
     assert axe_violations(page, axe_path) == []
     page.locator("#attempts article.attempt").first.get_by_role("button", name="Edit").tap()
@@ -107,4 +110,44 @@ def test_signed_sortie_sheet_seen_by_its_student(page, world, db, axe_path):
     sign_in(page, world.student.email)
     page.goto(f"/sorties/{sortie.id}")
     expect(page.get_by_role("button", name="I have read this record")).to_be_visible()
+    assert axe_violations(page, axe_path) == []
+
+
+def test_sortie_sheet_online_offline_and_with_waiting_and_refused_entries(page, world, db, axe_path):
+    from sqlalchemy import delete
+
+    from server.people.models import UserSession
+
+    sortie = make_sortie(db, world, attempts=2)
+    sign_in(page, world.instructor.email)
+    page.goto(f"/sorties/{sortie.id}")
+    page.wait_for_function("() => document.documentElement.dataset.offlineReady === '1'")
+    assert axe_violations(page, axe_path) == []  # online
+    page.context.set_offline(True)
+    expect(page.locator("#connection")).to_be_visible()
+    assert axe_violations(page, axe_path) == []  # offline, nothing waiting
+    form = page.locator("#attempt-form")
+    form.get_by_label("Flare begun at").fill("85")
+    form.get_by_role("button", name="Add attempt").tap()
+    expect(page.locator("#outbox-list li")).to_have_count(1)
+    assert axe_violations(page, axe_path) == []  # an entry waiting to send
+    db.execute(delete(UserSession))
+    db.commit()
+    page.context.set_offline(False)
+    expect(page.locator("#outbox-list li.refused")).to_have_count(1)
+    assert axe_violations(page, axe_path) == []  # a refused entry with what to do
+
+
+def test_sortie_sheet_with_a_plausibility_warning_and_the_correction_form(page, world, db, axe_path):
+    sortie = make_sortie(db, world, attempts=1)
+    sign_in(page, world.instructor.email)
+    page.goto(f"/sorties/{sortie.id}")
+    form = page.locator("#attempt-form")
+    form.get_by_label("Entry height").fill("300")
+    form.get_by_label("Flare begun at").fill("400")
+    form.get_by_role("button", name="Add attempt").tap()
+    expect(page.get_by_role("alert")).to_contain_text("above the entry height")
+    assert axe_violations(page, axe_path) == []
+    page.get_by_role("button", name="Correct these details").tap()
+    expect(page.get_by_role("heading", name="Correct the sortie's details")).to_be_visible()
     assert axe_violations(page, axe_path) == []

@@ -106,7 +106,7 @@ def test_instructor_logs_signs_and_sees_a_sortie_on_a_tablet(page, world):
         "Steady-descent airspeed": "65", "Rotor RPM lowest": "95", "Rotor RPM highest": "104",
         "Flare begun at": "90", "Touchdown or termination groundspeed": "3"})
     # Landing on 270 with the wind from 270 at 12 kt: all headwind.
-    expect(page.locator("#attempts article.attempt").first).to_contain_text("Wind: 12 kt head, 0 kt cross.")
+    expect(page.locator("#attempts article.attempt").first).to_contain_text("Wind: 12 kt headwind, no crosswind.")
     # The next attempt starts from the previous one's maneuver, termination and landing direction.
     expect(page.locator("#attempt-form input[name=maneuver][value=straight_in]")).to_be_checked()
     expect(page.locator("#attempt-form").get_by_label("Landing direction")).to_have_value("270")

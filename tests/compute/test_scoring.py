@@ -116,7 +116,7 @@ def test_worked_example_from_the_design_formula():
     assert result.parts["airspeed"].subscore == 0.0
     assert result.parts["touchdown_point"].deviation == 50.0
     assert not result.within_all_tolerances and not result.satisfactory
-    assert codes(result) == ["fast_touchdown"]
+    assert codes(result) == ["low_flare", "fast_touchdown"]  # the flare began 10 ft below the band
 
 
 @pytest.mark.parametrize(
@@ -337,3 +337,14 @@ def test_score_never_rises_as_a_deviation_grows(observation, field_and_direction
     far = dataclasses.replace(observation, **{field: far_value})
     near_score, far_score = score(near).score, score(far).score
     assert far_score <= near_score
+
+
+@pytest.mark.parametrize(("flare_height_ft", "flagged"), [(68.0, True), (79.0, True), (80.0, False), (130.0, False)])
+def test_a_flare_begun_below_the_band_raises_a_flag(flare_height_ft, flagged):
+    # Common practice: a flare begun low leaves less height to stop the descent, so it is flagged as well
+    # as scored; a flare begun high costs score only. The band here is 80 to 120 ft.
+    result = score(dataclasses.replace(GOOD, flare_height_ft=flare_height_ft))
+    assert ("low_flare" in codes(result)) is flagged
+    if flagged:
+        low = next(flag for flag in result.flags if flag.code == "low_flare")
+        assert f"{80 - flare_height_ft:g} ft below the expected band of 80–120 ft" in low.message

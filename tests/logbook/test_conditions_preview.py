@@ -1,9 +1,14 @@
 """The new-sortie page's live conditions: a pasted METAR fills the fields and density altitude appears;
 an unreadable one says so and fills nothing."""
 import html
+import json
 import re
 
-from tests.support import input_values
+
+def fill_of(page: str) -> dict:
+    """What the answer asks the page to fill (the page leaves fields typed in since the METAR alone)."""
+    match = re.search(r'data-fill="([^"]*)"', page)
+    return json.loads(html.unescape(match.group(1))) if match else {}
 
 
 def figure(page: str, element_id: str) -> str:
@@ -21,9 +26,11 @@ def test_a_pasted_metar_fills_the_fields_and_density_altitude_appears(instructor
     # 17 °C, QNH 1018 hPa. The test site is at 500 ft.
     answer = paste(instructor_client, world, "METAR YUDO 221630Z 24008KT 9999 SCT010 17/16 Q1018")
     assert answer.status_code == 200
-    filled = input_values(answer.text)
-    assert [filled[name] for name in ("wind_dir_deg", "wind_kt", "oat_c", "altimeter")] == ["240", "8", "17", "1018"]
-    assert 'hx-swap-oob="true"' in answer.text
+    filled = fill_of(answer.text)
+    assert [filled[name] for name in ("wind_dir_deg", "wind_kt", "oat_c", "altimeter")] == [240, 8, 17, 1018]
+    assert filled["altimeter_unit"] == "hPa"
+    assert "takeoff_weight_lb" not in filled  # a METAR carries no weight: never sent back over what is typed
+    assert "<input" not in answer.text  # no field is replaced by the answer
     # About 27 ft per hPa near sea level (common practice): 1018 hPa puts a 500 ft site about 130 ft lower.
     # 17 °C is warmer than ISA there (about 14 °C), so density altitude is above pressure altitude.
     pressure_ft = int(figure(answer.text, "pressure-altitude").split()[0].replace(",", ""))
@@ -36,5 +43,5 @@ def test_an_unreadable_metar_says_so_and_fills_nothing(instructor_client, world)
     text = html.unescape(answer.text)
     assert "This METAR could not be read" in text
     assert "Filled from the METAR" not in text
-    assert 'hx-swap-oob' not in answer.text and "wind_kt" not in input_values(answer.text)
+    assert fill_of(answer.text) == {}
     assert figure(answer.text, "density-altitude") == "—"

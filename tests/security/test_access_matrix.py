@@ -71,6 +71,7 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("MOUNT", "/static"): PUBLIC,
     ("GET", "/signin"): PUBLIC,
     ("GET", "/favicon.ico"): PUBLIC,
+    ("GET", "/sw.js"): PUBLIC,  # the sortie sheet's offline worker: a static script
     ("POST", "/signin"): PUBLIC,
     # A calendar feed is reached by the secret in its link alone (calendar apps cannot sign in).
     ("GET", "/calendar/{secret}.ics"): FEED,
@@ -135,6 +136,7 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("POST", "/api/v1/sorties"): CHANGE_API,
     ("GET", "/api/v1/sorties/{sortie_id}"): api(),
     ("PATCH", "/api/v1/sorties/{sortie_id}"): CHANGE_API,
+    ("DELETE", "/api/v1/sorties/{sortie_id}"): CHANGE_API,
     ("POST", "/api/v1/sorties/{sortie_id}/sign"): CHANGE_API,
     ("POST", "/api/v1/sorties/{sortie_id}/acknowledge"): CHANGE_API,
     ("POST", "/api/v1/sorties/{sortie_id}/amendments"): CHANGE_API,
@@ -148,6 +150,10 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("POST", "/sorties/conditions"): CHANGE_PAGE,
     ("GET", "/sorties/{sortie_id}"): page(),
     ("POST", "/sorties/{sortie_id}/attempts"): CHANGE_PAGE,
+    # The correction form of a draft (the matrix's own sortie is signed: nobody may correct it).
+    ("GET", "/sorties/{sortie_id}/details"): page(()),
+    ("POST", "/sorties/{sortie_id}/details"): CHANGE_PAGE,
+    ("POST", "/sorties/{sortie_id}/discard"): CHANGE_PAGE,
     ("GET", "/attempts/{attempt_id}/edit"): page(),
     ("GET", "/attempts/{attempt_id}"): page(),
     ("POST", "/attempts/{attempt_id}"): CHANGE_PAGE,
