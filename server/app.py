@@ -3,7 +3,7 @@ from contextlib import asynccontextmanager
 
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
-from fastapi.responses import JSONResponse, RedirectResponse
+from fastapi.responses import FileResponse, JSONResponse, RedirectResponse
 from fastapi.staticfiles import StaticFiles
 from starlette.exceptions import HTTPException as StarletteHTTPException
 from starlette.middleware.gzip import GZipMiddleware
@@ -18,6 +18,8 @@ from server.fleet import api as fleet_api
 from server.fleet import routes as fleet_routes
 from server.imports import api as imports_api
 from server.imports import routes as imports_routes
+from server.fleet import setup_routes as fleet_setup_routes
+from server.head import HeadAsGet
 from server.logbook import api as logbook_api
 from server.logbook import history_routes, people_api as visible_people_api, type_page_routes
 from server.logbook import routes as logbook_routes
@@ -38,6 +40,7 @@ from server.security import SecurityHeaders
 from server.standardisation import api as standardisation_api
 from server.standardisation import routes as standardisation_routes
 from server.training import api as training_api
+from server.training import people_routes as people_setup_routes
 from server.training import standards_api, standards_routes
 from server.web import is_htmx, render
 from server.write_queue import WriterQueue
@@ -75,6 +78,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
                        larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths])
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
+    app.add_middleware(HeadAsGet)  # outermost: the GET's headers, Content-Length included, without the body
+    app.add_api_route("/favicon.ico", _favicon, include_in_schema=False)
     app.mount("/static", StaticFiles(directory=str(PROJECT_ROOT / "static")), name="static")
     for module in (people_api, visible_people_api, fleet_api, logbook_api):
         app.include_router(module.router, prefix="/api/v1")
@@ -88,7 +93,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.include_router(safety_api.router, prefix="/api/v1")
     app.include_router(safety_routes.router)
     app.include_router(standards_api.router, prefix="/api/v1")
-    for module in (fleet_routes, type_page_routes, standards_routes):
+    for module in (fleet_routes, fleet_setup_routes, type_page_routes, people_setup_routes, standards_routes):
         app.include_router(module.router)
     app.include_router(history_routes.router)
     app.include_router(track_api.router, prefix="/api/v1")
@@ -104,6 +109,12 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     describe_errors(app)
     refuse_out_of_range(app)
     return app
+
+
+def _favicon():
+    """Browsers and tools ask for /favicon.ico; the icon itself is the SVG in static/."""
+    return FileResponse(PROJECT_ROOT / "static" / "favicon.svg", media_type="image/svg+xml",
+                        headers={"Cache-Control": "public, max-age=86400"})
 
 
 HTTP_ERROR_WORDS = {

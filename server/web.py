@@ -5,6 +5,7 @@ from starlette.responses import HTMLResponse
 
 from server.compute.atmosphere import hpa_to_inhg
 from server.config import PROJECT_ROOT
+from server.navigation import main_nav
 from server.vocabulary import MANEUVER_LABELS, ROLE_LABELS, TERMINATION_LABELS
 
 templates = Jinja2Templates(directory=str(PROJECT_ROOT / "templates"))
@@ -31,6 +32,11 @@ def _fmt(value, digits: int = 0, unit: str = "", *, trim: bool = False) -> str:
     return f"{text} {unit}".strip()
 
 
+def _labelled(keys, labels: dict) -> str:
+    """Stored keys in words: ["chief_pilot", "instructor"] reads "Chief pilot, Instructor"."""
+    return ", ".join(labels.get(key, key) for key in keys)
+
+
 # Attempt fields that a recorded track can fill, by score part and by name (tracks/_measured_line.html).
 MEASURED_PART_FIELDS = {"touchdown_speed": "touchdown_speed_kt", "flare_height": "flare_height_ft",
                         "touchdown_point": "point_error_ft"}
@@ -38,11 +44,12 @@ MEASURED_LABELS = {"entry_height_ft": "entry height", "flare_height_ft": "flare 
                    "touchdown_speed_kt": "touchdown speed", "point_error_ft": "distance from the aim point"}
 
 templates.env.filters["num"] = _fmt
+templates.env.filters["labelled"] = _labelled
 templates.env.filters["inhg"] = hpa_to_inhg  # pressure units convert in one place, not in templates
 templates.env.globals.update(
     CAUTION=CAUTION, MANEUVER_LABELS=MANEUVER_LABELS, TERMINATION_LABELS=TERMINATION_LABELS,
     ROLE_LABELS=ROLE_LABELS, STATE_LABELS=STATE_LABELS, MEASURED_PART_FIELDS=MEASURED_PART_FIELDS,
-    MEASURED_LABELS=MEASURED_LABELS,
+    MEASURED_LABELS=MEASURED_LABELS, main_nav=main_nav,
 )
 
 

@@ -146,3 +146,26 @@ def audit_table_writable(connection):
     yield
     for _, sql in triggers:
         connection.execute(text(sql))
+
+
+def parsed(answer) -> "BeautifulSoup":
+    """A page or fragment parsed as a browser would read it, for checks by element rather than by substring."""
+    from bs4 import BeautifulSoup
+
+    return BeautifulSoup(answer.text, "html.parser")
+
+
+def read_text(element) -> str:
+    """An element's text as assistive technology reads it: shapes marked aria-hidden left out."""
+    import copy
+
+    element = copy.copy(element)
+    for hidden in element.find_all(attrs={"aria-hidden": "true"}):
+        hidden.decompose()
+    return " ".join(element.get_text(" ").split())
+
+
+def cell_texts(table) -> list[list[str]]:
+    """The text of each body cell of a parsed table, row by row, as read aloud."""
+    return [[read_text(cell) for cell in row.find_all(["th", "td"], recursive=False)]
+            for row in table.find("tbody").find_all("tr", recursive=False)]

@@ -16,7 +16,7 @@ LAYERS = [
     {"db", "types", "errors", "config", "vocabulary", "migrate", "input_rules"},
     {"records"},
     {"deps", "forms", "web", "idempotency", "write_queue", "security", "bad_input", "openapi_errors",
-     "csv_export", "request_bodies"},
+     "csv_export", "request_bodies", "head", "navigation"},
     {"people"},
     {"fleet"},
     {"training"},

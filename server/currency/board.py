@@ -17,7 +17,7 @@ from server.vocabulary import ROLE_LABELS
 STATUS_LABELS = {"current": "Current", "due_soon": "Due soon", "lapsed": "Lapsed", "never": "Never done"}
 # Our own shapes, so a status never rests on colour alone.
 STATUS_SHAPES = {"current": "●", "due_soon": "◐", "lapsed": "✕", "never": "○"}
-PAGE_SIZE = 100
+PAGE_SIZE = 50  # pilots per page: a school of 40 reads on one page
 CSV_HEADER = ("Pilot", "Roles", "Rule", "Status", "Date", "Qualifying in window", "Needed", "What to do")
 
 
@@ -124,11 +124,94 @@ def person_standings(session: Session, *, person_id: int, as_of: date) -> list[S
     return standings(session, as_of=as_of, person_ids=[person_id])
 
 
+# ---- the board as a grid: one row per pilot, one column per rule ---------------------------------
+
+SHORT_NAME_LENGTH = 36  # two lines of a column heading at 1024 px with six rules
+
+
+def short_rule_name(name: str, limit: int = SHORT_NAME_LENGTH) -> str:
+    """A column heading: the rule's name, cut at a word before `limit` characters when longer."""
+    if len(name) <= limit:
+        return name
+    cut = name[:limit].rsplit(" ", 1)[0].rstrip(" ,;:-") or name[:limit]
+    return cut + "…"
+
+
+def cell_words(standing: Standing) -> str:
+    """Under the status in a grid cell: "until 1 Dec 2026", "since 3 Nov 2026", or what is missing."""
+    if standing.current_until is None:
+        if standing.status == "never":
+            return f"{standing.needed} to fly"
+        return f"not yet current: {standing.needed} more" if standing.needed else ""
+    day = standing.current_until + timedelta(days=1) if standing.status == "lapsed" else standing.current_until
+    return f"{'since' if standing.status == 'lapsed' else 'until'} {day.day} {day:%b %Y}"
+
+
+@dataclass(frozen=True)
+class GridRow:
+    """One pilot across the board's rules; a rule that does not apply to them has no cell."""
+
+    person_id: int
+    name: str
+    roles: tuple[str, ...]
+    cells: dict[int, Standing]
+
+    @property
+    def worst(self) -> Standing:
+        return min(self.cells.values(), key=Standing.sort_key)
+
+    @property
+    def role_words(self) -> str:
+        return self.worst.role_words
+
+    def sort_key(self) -> tuple:
+        """Soonest trouble first: the pilot's worst cell decides, then the name."""
+        worst = self.worst
+        return (STATUS_RANK[worst.status], worst.current_until or date.max, self.name.casefold(), self.person_id)
+
+
+def grid(rows: Sequence[Standing], *, status: str | None = None) -> list[GridRow]:
+    """The standings pivoted to one row per pilot, soonest trouble first; `status` keeps pilots with a cell in it."""
+    by_person: dict[int, GridRow] = {}
+    for row in rows:
+        line = by_person.setdefault(row.person_id, GridRow(person_id=row.person_id, name=row.name,
+                                                           roles=row.roles, cells={}))
+        line.cells[row.rule_id] = row
+    found = [line for line in by_person.values() if status is None
+             or any(cell.status == status for cell in line.cells.values())]
+    return sorted(found, key=GridRow.sort_key)
+
+
+def board_grid(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,
+               status: str | None = None) -> tuple[list[CurrencyRule], list[GridRow]]:
+    """The board's columns (the rules that apply to someone shown) and its rows, one per pilot."""
+    lines = grid(board(session, as_of=as_of, role=role, rule_id=rule_id), status=status)
+    used = {rule_id for line in lines for rule_id in line.cells}
+    return [rule for rule in rules_service.list_rules(session) if rule.id in used], lines
+
+
+def rule_texts(session: Session, rules: Sequence[CurrencyRule]) -> dict[int, str]:
+    """Each rule in full, for the column heading's "what it asks"."""
+    names = rules_service.type_names(session)
+    out = {}
+    for rule in rules:
+        many, one = rules_service.describe(rule, names)
+        out[rule.id] = (f"At least {rule.min_count} {one if rule.min_count == 1 else many} in "
+                        f"{rules_service.window_words(rule)}; warning {rule.warn_days} "
+                        f"day{'' if rule.warn_days == 1 else 's'} ahead.")
+    return out
+
+
+def cells_of(lines: Sequence[GridRow], columns: Sequence[CurrencyRule]) -> list[Standing]:
+    """Every cell of the grid, pilot by pilot in the board's order, rule by rule in the columns' order."""
+    return [line.cells[rule.id] for line in lines for rule in columns if rule.id in line.cells]
+
+
 @dataclass(frozen=True)
 class BoardPage:
-    """One page of the board (or all of it), with the counts per status of the whole board."""
+    """One page of the board's pilots (or all of them), with the counts per status of every cell."""
 
-    rows: list[Standing]
+    rows: list[GridRow]
     total: int
     counts: dict[str, int]
     page: int
@@ -140,11 +223,12 @@ class BoardPage:
         return 0 if self.show_all else (self.page - 1) * PAGE_SIZE
 
 
-def board_page(rows: list[Standing], *, page: int, show_all: bool) -> BoardPage:
+def board_page(rows: list[GridRow], *, page: int, show_all: bool) -> BoardPage:
     """The page asked for (a page past the end shows the last one)."""
     counts = {key: 0 for key in STATUS_LABELS}
     for row in rows:
-        counts[row.status] += 1
+        for cell in row.cells.values():
+            counts[cell.status] += 1
     pages = max(1, -(-len(rows) // PAGE_SIZE))
     page = min(page, pages)
     shown = rows if show_all else rows[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]

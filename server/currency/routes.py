@@ -49,14 +49,17 @@ def _board_filters(role: str | None, rule_id: str | None, status: str | None) ->
 def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: str | None = None,
                     role: str | None = None, rule_id: str | None = None, status: str | None = None,
                     page: int = Query(default=1, ge=1), show: str | None = None):
-    """Every active pilot against every rule that applies, soonest trouble first."""
+    """One row per active pilot, one column per rule, soonest trouble first."""
     day, message = _as_of(db, as_of)
     filters = _board_filters(role, rule_id, status)
-    shown = board.board_page(board.board(db, as_of=day, **filters), page=page, show_all=show == "all")
+    columns, lines = board.board_grid(db, as_of=day, **filters)
+    shown = board.board_page(lines, page=page, show_all=show == "all")
     query = {"as_of": day.isoformat(), **{k: v for k, v in filters.items() if v is not None}}
     return render(request, "currency/board.html", {
-        "person": person, "rows": shown.rows, "total": shown.total, "counts": shown.counts, "as_of": day,
-        "message": message, "as_of_words": format_date(day),
+        "person": person, "lines": shown.rows, "total": shown.total, "counts": shown.counts, "as_of": day,
+        "message": message, "as_of_words": format_date(day), "columns": columns,
+        "rule_words": board.rule_texts(db, columns), "short_name": board.short_rule_name,
+        "cell_words": board.cell_words,
         "filters": filters, "rules": rules_service.list_rules(db), "roles": ROLES, "statuses": STATUS_CHOICES,
         "page": shown.page, "pages": shown.pages, "show_all": shown.show_all, "query": query,
         "first_index": shown.first_index,
@@ -66,10 +69,10 @@ def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: s
 @router.get("/currency/board.csv", name="readiness_board_csv")
 def readiness_board_csv(db: DbSession, person: SetupUser, as_of: str | None = None, role: str | None = None,
                         rule_id: str | None = None, status: str | None = None):
-    """The board as shown (same filters, every page), for a spreadsheet."""
+    """Every cell of the board as shown (same filters, every page), one line per pilot and rule."""
     day, _ = _as_of(db, as_of)
-    rows = board.board(db, as_of=day, **_board_filters(role, rule_id, status))
-    return Response(board.board_csv(rows), media_type="text/csv; charset=utf-8", headers={
+    columns, lines = board.board_grid(db, as_of=day, **_board_filters(role, rule_id, status))
+    return Response(board.board_csv(board.cells_of(lines, columns)), media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
 
 
@@ -146,7 +149,8 @@ def _rules_page(request: Request, db, person: Person, *, values: dict, errors: d
     rules = rules_service.list_rules(db)
     return render(request, "currency/rules.html", {
         "person": person, "rules": rules, "values": values, "errors": errors, "message": message,
-        "described": {r.id: rules_service.describe(r, names)[0] for r in rules},
+        # "at least 1 satisfactory autorotation", "at least 2 ... autorotations"
+        "described": {r.id: rules_service.describe(r, names)[0 if r.min_count != 1 else 1] for r in rules},
         "windows": {r.id: rules_service.window_words(r) for r in rules},
         **_rule_choices(db),
     }, status_code=status_code)

@@ -47,3 +47,5 @@ class Site(Base):
     # The aim point of the practice landings (WGS 84), for distances measured from a recorded track.
     aim_lat_deg: Mapped[float | None] = mapped_column(Float)
     aim_lon_deg: Mapped[float | None] = mapped_column(Float)
+    # A site no longer used is kept for the records flown there, but not offered for new sorties.
+    active: Mapped[bool] = mapped_column(Boolean, default=True)

@@ -139,3 +139,58 @@ def create_site(session: Session, *, data: SiteCreate, actor: Person) -> Site:
     audit.append(session, actor_id=actor.id, action="create", entity="site", entity_id=row.id,
                  after=data.model_dump())
     return row
+
+
+def update_aircraft(session: Session, *, row: Aircraft, data: AircraftCreate, actor: Person) -> Aircraft:
+    """Change an aircraft's registration or type; records flown in it keep pointing at the same row."""
+    registration = data.registration.strip().upper()
+    if session.get(HelicopterType, data.type_id) is None:
+        raise Invalid("type_id does not name a helicopter type.")
+    if session.scalar(select(Aircraft.id).where(Aircraft.registration == registration, Aircraft.id != row.id)):
+        raise Conflict(f"Aircraft {registration} exists already.")
+    before = {"registration": row.registration, "type_id": row.type_id}
+    row.registration, row.type_id = registration, data.type_id
+    session.flush()
+    session.refresh(row)  # the joined type follows the new type_id
+    audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
+                 before=before, after={"registration": registration, "type_id": data.type_id})
+    return row
+
+
+def set_aircraft_active(session: Session, *, row: Aircraft, active: bool, actor: Person) -> Aircraft:
+    """Take an aircraft out of use (or back): new sorties no longer offer it; its records stay."""
+    if row.active != active:
+        row.active = active
+        session.flush()
+        audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
+                     before={"active": not active}, after={"active": active})
+    return row
+
+
+def site_read(row: Site) -> dict:
+    """A site's fields as the API's SiteCreate names them, plus its id and whether it is in use."""
+    return {"id": row.id, "active": row.active,
+            **{name: getattr(row, name) for name in SiteCreate.model_fields if hasattr(row, name)}}
+
+
+def update_site(session: Session, *, row: Site, data: SiteCreate, actor: Person) -> Site:
+    """Change a site's name, elevation, landing directions (and aim point, where the model has one)."""
+    if session.scalar(select(Site.id).where(Site.name == data.name, Site.id != row.id)):
+        raise Conflict(f"A site called {data.name} exists already.")
+    before = site_read(row)
+    for key, value in data.model_dump().items():
+        setattr(row, key, value)
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="edit", entity="site", entity_id=row.id,
+                 before=before, after=site_read(row))
+    return row
+
+
+def set_site_active(session: Session, *, row: Site, active: bool, actor: Person) -> Site:
+    """Take a site out of use (or back): new sorties no longer offer it; its records stay."""
+    if row.active != active:
+        row.active = active
+        session.flush()
+        audit.append(session, actor_id=actor.id, action="edit", entity="site", entity_id=row.id,
+                     before={"active": not active}, after={"active": active})
+    return row

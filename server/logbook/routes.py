@@ -1,6 +1,6 @@
 """Pages and htmx fragments of the sortie sheet."""
 import uuid
-from datetime import datetime
+from datetime import date, datetime
 from zoneinfo import ZoneInfo
 
 from fastapi import APIRouter, Query, Request
@@ -75,9 +75,31 @@ def _form_choices(db, person: Person) -> dict:
     return {
         "pilots": [(p.id, p.name) for p in pilots],
         "aircraft": [(a.id, f"{a.registration} · {a.type.designation}") for a in fleet.list_aircraft(db) if a.active],
-        "sites": [(s.id, f"{s.name} ({s.elevation_ft:,.0f} ft)") for s in fleet.list_sites(db)],
+        "sites": [(s.id, f"{s.name} ({s.elevation_ft:,.0f} ft)") for s in fleet.list_sites(db) if s.active],
         "timezone": people.school(db).timezone,
     }
+
+
+SORTIES_PER_PAGE = 50
+SORTIE_STATE_LABELS = {"draft": "Draft", "signed": "Signed, waiting for the pilot", "acknowledged": "Acknowledged"}
+
+
+def _chosen_id(value: str | None, what: str) -> int | None:
+    """A choice from a filter's list; empty means any."""
+    if value is None or value.strip() == "":
+        return None
+    if not value.strip().isdigit():
+        raise Invalid(f"Choose the {what} from the list.")
+    return int(value)
+
+
+def _chosen_date(value: str | None, what: str):
+    if value is None or value.strip() == "":
+        return None
+    try:
+        return date.fromisoformat(value.strip())
+    except ValueError:
+        raise Invalid(f"Write the {what} date as YYYY-MM-DD.") from None
 
 
 @router.get("/sw.js", name="service_worker")
@@ -88,11 +110,40 @@ def service_worker():
 
 
 @router.get("/sorties", name="sortie_list")
-def sortie_list(request: Request, db: DbSession, person: PageUser, offset: int = Query(default=0, ge=0)):
-    sorties = logbook.list_sorties(db, viewer=person, limit=50, offset=offset)
+def sortie_list(request: Request, db: DbSession, person: PageUser, offset: int = Query(default=0, ge=0),
+                pilot_id: str | None = Query(default=None, max_length=12),
+                instructor_id: str | None = Query(default=None, max_length=12),
+                aircraft_id: str | None = Query(default=None, max_length=12),
+                state: str | None = Query(default=None, max_length=20),
+                date_from: str | None = Query(default=None, max_length=10),
+                date_to: str | None = Query(default=None, max_length=10)):
+    """Sorties newest first, filtered by what the address says, a page at a time both ways."""
+    filters = {
+        "pilot_id": _chosen_id(pilot_id, "pilot"), "instructor_id": _chosen_id(instructor_id, "instructor"),
+        "aircraft_id": _chosen_id(aircraft_id, "aircraft"), "state": (state or "").strip() or None,
+        "flown_from": _chosen_date(date_from, "first"), "flown_to": _chosen_date(date_to, "last"),
+    }
+    if filters["flown_from"] and filters["flown_to"] and filters["flown_from"] > filters["flown_to"]:
+        raise Invalid("The first date must not be after the last date.")
+    found = logbook.list_sorties(db, viewer=person, limit=SORTIES_PER_PAGE + 1, offset=offset, **filters)
+    sorties = found[:SORTIES_PER_PAGE]
+    kept = {key: value for key, value in {
+        "pilot_id": filters["pilot_id"], "instructor_id": filters["instructor_id"],
+        "aircraft_id": filters["aircraft_id"], "state": filters["state"],
+        "date_from": filters["flown_from"] and filters["flown_from"].isoformat(),
+        "date_to": filters["flown_to"] and filters["flown_to"].isoformat()}.items() if value is not None}
+    pilots = access.visible_people(db, viewer=person)
+    here = request.url_for("sortie_list")
     return render(request, "logbook/sortie_list.html", {
-        "person": person, "sorties": sorties, "limit": 50, "offset": offset,
+        "person": person, "sorties": sorties, "limit": SORTIES_PER_PAGE, "offset": offset, "kept": kept,
+        "newer_url": here.include_query_params(**kept, offset=max(0, offset - SORTIES_PER_PAGE)) if offset else None,
+        "older_url": (here.include_query_params(**kept, offset=offset + SORTIES_PER_PAGE)
+                      if len(found) > SORTIES_PER_PAGE else None),
         "states": {s.id: logbook.display_state(db, s) for s in sorties},
+        "pilot_choices": [(p.id, p.name) for p in pilots],
+        "instructor_choices": [(p.id, p.name) for p in pilots if p.has_role("instructor")],
+        "aircraft_choices": [(a.id, a.registration) for a in fleet.list_aircraft(db)],
+        "state_choices": list(SORTIE_STATE_LABELS.items()),
     })
 
 
@@ -422,9 +473,13 @@ def sortie_discard(sortie_id: int, request: Request, db: DbSession, person: Page
 
 
 @router.post("/sorties/{sortie_id}/acknowledge", name="sortie_acknowledge")
-def sortie_acknowledge(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+async def sortie_acknowledge(sortie_id: int, request: Request, db: DbSession, person: PageUser):
+    """The pilot acknowledges; from the progress file's waiting list they go back there."""
     sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
     logbook.acknowledge_sortie(db, actor=person, sortie=sortie)
+    if (await request.form()).get("back") == "progress":
+        return RedirectResponse(str(request.url_for("progress_file", pilot_id=sortie.pilot_id)) + "#waiting-h",
+                                status_code=303)
     return RedirectResponse(request.url_for("sortie_sheet", sortie_id=sortie.id), status_code=303)
 
 

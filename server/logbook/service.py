@@ -1,6 +1,6 @@
 """Sorties and attempts: create, edit while a draft, sign, acknowledge, amend."""
 import hashlib
-from datetime import UTC, datetime, timedelta
+from datetime import UTC, date, datetime, time, timedelta
 
 from pydantic import ValidationError
 from sqlalchemy import func, select
@@ -63,15 +63,41 @@ def get_attempt(session: Session, *, attempt_id: int, viewer: Person) -> Attempt
     return attempt
 
 
+SORTIE_LIST_STATES = ("draft", "signed", "acknowledged")  # signed: waiting for the pilot's acknowledgement
+
+
 def list_sorties(session: Session, *, viewer: Person, pilot_id: int | None = None, type_id: int | None = None,
+                 instructor_id: int | None = None, aircraft_id: int | None = None, state: str | None = None,
+                 flown_from: date | None = None, flown_to: date | None = None,
                  limit: int = 50, offset: int = 0) -> list[Sortie]:
-    """Newest first, only what the viewer may see, only the latest version of each record."""
+    """Newest first, only what the viewer may see, only the latest version of each record.
+
+    `state` is one of SORTIE_LIST_STATES; `flown_from` and `flown_to` are the school's local dates,
+    both included.
+    """
     superseding = select(Sortie.supersedes_id).where(Sortie.supersedes_id.is_not(None))
     query = select(Sortie).where(Sortie.id.not_in(superseding)).order_by(Sortie.flown_at.desc(), Sortie.id.desc())
     if pilot_id is not None:
         query = query.where(Sortie.pilot_id == pilot_id)
+    if instructor_id is not None:
+        query = query.where(Sortie.instructor_id == instructor_id)
+    if aircraft_id is not None:
+        query = query.where(Sortie.aircraft_id == aircraft_id)
     if type_id is not None:
         query = query.where(Sortie.aircraft_id.in_(select(Aircraft.id).where(Aircraft.type_id == type_id)))
+    if state is not None:
+        if state not in SORTIE_LIST_STATES:
+            raise Invalid(f"The record state must be one of: {', '.join(SORTIE_LIST_STATES)}.")
+        acknowledged = Sortie.id.in_(select(Signature.sortie_id).where(Signature.meaning == "pilot_acknowledges"))
+        query = query.where(Sortie.state == ("draft" if state == "draft" else "signed"))
+        if state != "draft":
+            query = query.where(acknowledged if state == "acknowledged" else ~acknowledged)
+    zone = people.school_zone(session)
+    if flown_from is not None:
+        query = query.where(Sortie.flown_at >= datetime.combine(flown_from, time.min, tzinfo=zone).astimezone(UTC))
+    if flown_to is not None:
+        day_after = datetime.combine(flown_to + timedelta(days=1), time.min, tzinfo=zone).astimezone(UTC)
+        query = query.where(Sortie.flown_at < day_after)
     if not viewer.sees_everyone:
         ids = {viewer.id}
         if viewer.has_role("instructor"):

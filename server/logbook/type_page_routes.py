@@ -22,7 +22,12 @@ SORTIE_CHOICES = 100
 
 def _sortie_label(sortie, zone: ZoneInfo) -> str:
     when = sortie.flown_at.astimezone(zone).strftime("%d %b %Y %H:%M")
-    return f"{when} · {sortie.pilot.name} · {sortie.aircraft.registration} · {len(sortie.attempts)} attempts"
+    count = len(sortie.attempts)
+    return f"{when} · {sortie.pilot.name} · {sortie.aircraft.registration} · {count} attempt{'' if count == 1 else 's'}"
+
+
+def _has_entry_points(sortie) -> bool:
+    return any(a.entry_kias is not None and a.entry_height_ft is not None for a in sortie.attempts)
 
 
 @router.get("/setup/types/{type_id}", name="type_page")
@@ -30,7 +35,8 @@ def type_page(type_id: int, request: Request, db: DbSession, person: SetupUser, 
     """The type's figures and its height-velocity chart with a chosen sortie's entry points."""
     row = fleet.get_type(db, type_id)
     sorties = logbook.list_sorties(db, viewer=person, type_id=row.id, limit=SORTIE_CHOICES)
-    chosen = sorties[0] if sorties and sortie_id is None else None
+    # By default the newest sortie that has something to plot: an attempt with its entry point.
+    chosen = next((s for s in sorties if _has_entry_points(s)), None) if sortie_id is None else None
     if sortie_id is not None:
         chosen = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
         if chosen.aircraft.type_id != row.id:

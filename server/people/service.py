@@ -97,6 +97,11 @@ def get_person(session: Session, person_id: int) -> Person:
     return person
 
 
+def list_people(session: Session) -> list[Person]:
+    """Everyone with an account, by name: the Setup pages (chief pilots and administrators see everyone)."""
+    return list(session.scalars(select(Person).order_by(Person.name, Person.id)))
+
+
 def find_by_email(session: Session, email: str) -> Person | None:
     return session.scalar(select(Person).where(Person.email == normalise_email(email)))
 

@@ -34,6 +34,8 @@ class ChartData:
     lcl: Sequence[float]
     # Beside each value: measured from a recorded track (drawn as a square) rather than observed.
     measured: Sequence[bool] = ()
+    first_number: int = 1  # the number of the first value shown among the pilot's (the chart shows the last ones)
+    count_noun: str = "attempt"  # what the x axis counts: attempts with this figure recorded
 
 
 def _fmt(value: float) -> str:
@@ -108,7 +110,8 @@ def trend_chart_svg(data: ChartData) -> str:
     # recorded track is a square (filled inside, hollow outside).
     for i, value in enumerate(data.values):
         x, y = x_at(i), y_at(value)
-        label = f"{data.dates[i].isoformat()}: {_fmt(value)} {data.unit}"
+        label = (f"{data.count_noun.capitalize()} #{data.first_number + i}, {data.dates[i].isoformat()}: "
+                 f"{_fmt(value)} {data.unit}")
         inside = _inside(value, data.band_low[i], data.band_high[i])
         if i < len(data.measured) and data.measured[i]:
             where = "inside" if inside else "outside"
@@ -124,15 +127,16 @@ def trend_chart_svg(data: ChartData) -> str:
             parts.append(f'<polygon class="attempt outside" points="{diamond}" fill="#ffffff" '
                          f'stroke="{OUTSIDE_COLOUR}" stroke-width="2"><title>{escape(label)}, outside the band'
                          f'</title></polygon>')
-    # Time axis: first, middle and last dates of the attempts shown.
+    # The x axis counts attempts, so it is labelled with attempt numbers; dates are in each point's title.
     for i in sorted({0, (n - 1) // 2, n - 1}):
         x = x_at(i)
         anchor = "start" if i == 0 and n > 1 else "end" if i == n - 1 and n > 1 else "middle"
         parts.append(f'<line x1="{x:.1f}" x2="{x:.1f}" y1="{TOP + plot_h}" y2="{TOP + plot_h + 5}" stroke="{INK}"/>')
         parts.append(f'<text x="{x:.1f}" y="{TOP + plot_h + 20}" text-anchor="{anchor}" fill="{INK}">'
-                     f'{data.dates[i].strftime("%d %b %Y")}</text>')
+                     f'#{data.first_number + i}</text>')
     parts.append(f'<text x="{LEFT + plot_w / 2:.1f}" y="{HEIGHT - 8}" text-anchor="middle" fill="{MUTED}">'
-                 f'Attempts in flight order ({n} shown)</text>')
+                 f'{data.count_noun.capitalize()} number, in flight order ({data.dates[0].strftime("%d %b %Y")} to '
+                 f'{data.dates[-1].strftime("%d %b %Y")})</text>')
     parts.append("</svg>")
     return "".join(parts)
 

@@ -70,7 +70,8 @@ class KindView:
 @dataclass
 class ChartView:
     svg: str
-    summary: str
+    summary: str  # the figures in full, for assistive technology and instructors
+    words: str = ""  # what it shows and what the pilot takes from it, without statistics
 
 
 @dataclass
@@ -116,6 +117,86 @@ def _window(items: list) -> list:
     return items[-CHART_WINDOW:]
 
 
+# ---- the charts in a pilot's words ----------------------------------------------------------------
+
+RECENT = 10  # "your last 10": compared with the 10 before
+
+
+def _fmt(value: float) -> str:
+    text = f"{value:.1f}"
+    return text[:-2] if text.endswith(".0") else text
+
+
+def _last_and_before(values: list) -> tuple[list, list]:
+    return values[-RECENT:], values[-2 * RECENT:-RECENT]
+
+
+def touchdown_words(data: ChartData) -> str:
+    """Touchdown speed in a sentence: the recent average, which way it moves, how many were under the maximum."""
+    values = list(data.values)
+    if not values:
+        return "No touchdown speeds recorded yet."
+    last, before = _last_and_before(values)
+    highs = list(data.band_high)[-len(last):]
+    if len(last) == 1:
+        text = f"Your one touchdown so far was at {_fmt(last[0])} kt"
+        if highs[0] is not None:
+            text += f", {'at or under' if last[0] <= highs[0] else 'over'} the {_fmt(highs[0])} kt maximum"
+        return text + "."
+    average = sum(last) / len(last)
+    your = f"your last {len(last)}"
+    if len(before) >= 5:
+        earlier = sum(before) / len(before)
+        maximum = next((h for h in reversed(highs) if h is not None), None)
+        steady = 0.05 * maximum if maximum else 0.2  # a twentieth of the allowance: too small to call a change
+        if abs(average - earlier) <= steady:
+            text = (f"Your touchdowns are holding steady: {_fmt(average)} kt on average over {your}, "
+                    f"{_fmt(earlier)} kt over the {len(before)} before.")
+        elif average < earlier:
+            text = (f"Your touchdowns are getting slower, which is what you want: {_fmt(average)} kt on average "
+                    f"over {your}, down from {_fmt(earlier)} kt over the {len(before)} before.")
+        else:
+            text = (f"Your touchdowns are getting faster: {_fmt(average)} kt on average over {your}, up from "
+                    f"{_fmt(earlier)} kt over the {len(before)} before. Ask your instructor what to change.")
+    else:
+        text = f"Your touchdowns average {_fmt(average)} kt over {your}."
+    judged = [(v, h) for v, h in zip(last, highs, strict=True) if h is not None]
+    if judged:
+        under = sum(v <= h for v, h in judged)
+        text += f" {under} of these {len(judged)} stayed at or under the {_fmt(judged[-1][1])} kt maximum."
+    return text
+
+
+def flare_words(data: ChartData) -> str:
+    """Flare height in a sentence: how many recent flares began inside the expected band, and which way the misses went."""
+    rows = [(v, lo, hi) for v, lo, hi in zip(data.values, data.band_low, data.band_high, strict=True)
+            if lo is not None and hi is not None]
+    if not rows:
+        return "No flare heights recorded yet."
+    last, before = _last_and_before(rows)
+    inside = sum(lo <= v <= hi for v, lo, hi in last)
+    low = sum(v < lo for v, lo, hi in last)
+    high = sum(v > hi for v, lo, hi in last)
+    if len(last) == 1:
+        where = "inside" if inside else "below" if low else "above"
+        text = f"Your one flare so far began {where} the expected band."
+        return text + " The band moves with each day's density altitude and weight."
+    text = f"Of your last {len(last)} flares, {inside} began inside the expected band"
+    if len(before) >= 5:
+        text += f" ({sum(lo <= v <= hi for v, lo, hi in before)} of the {len(before)} before)"
+    text += "."
+    if low or high:
+        misses = " and ".join(part for part in (f"{low} too low" if low else "", f"{high} too high" if high else "")
+                              if part)
+        text += f" Outside the band: {misses}."
+        if low > high:
+            text += " Low means the flare began late."
+        elif high > low:
+            text += " High means the flare began early."
+    text += " The band moves with each day's density altitude and weight."
+    return text
+
+
 def touchdown_chart(view: KindView) -> ChartData:
     """Touchdown speed with the maximum as the band's top, from the trends' own EWMA chart."""
     metric = view.trend.metrics["touchdown_speed_kt"]
@@ -128,6 +209,7 @@ def touchdown_chart(view: KindView) -> ChartData:
         band_low=[0.0 if t is not None else None for t in _window(tolerances)], band_high=_window(tolerances),
         ewma=_window(metric.ewma), ucl=_window(metric.ucl), lcl=_window(metric.lcl),
         measured=_window(metric.measured),
+        first_number=len(metric.values) - len(_window(metric.values)) + 1, count_noun="touchdown",
     )
 
 
@@ -147,6 +229,7 @@ def flare_chart(view: KindView, source: str = "all") -> ChartData:
         ewma=_window(chart.ewma) if chart else [], ucl=_window(chart.ucl) if chart else [],
         lcl=_window(chart.lcl) if chart else [],
         measured=["flare_height_ft" in p.measured for p in shown],
+        first_number=len(values) - len(_window(values)) + 1, count_noun="flare",
     )
 
 
@@ -154,18 +237,18 @@ def _needed_next(program: programs.ProgramProgress | None, kinds: list[KindView]
     """What the student does next, in the syllabus's words."""
     needed = []
     if program is not None:
-        stage, lesson = program.current_stage, program.current_lesson
+        stage, lesson = program.current_stage, program.position_lesson
         if stage is None:
             needed.append(f"Every stage of {program.program.name} is passed.")
-        elif lesson is None:
-            needed.append(f"{stage.stage.name}: every lesson is confirmed; the stage check is next, with a chief "
-                          "pilot or a check instructor other than the usual instructor.")
-        elif lesson.attempts_met:
-            needed.append(f"{lesson.lesson.name}: the signed records meet it; an instructor confirms it next.")
-        else:
+        elif lesson is not None:
             for requirement in lesson.requirements:
                 if not requirement.met:
                     needed.append(f"{lesson.lesson.name}: {requirement.words}.")
+        for waiting in program.awaiting_confirmation:
+            needed.append(f"{waiting.lesson.name}: the signed records meet it; an instructor confirms it next.")
+        if stage is not None and lesson is None and not program.awaiting_confirmation:
+            needed.append(f"{stage.stage.name}: every lesson is confirmed; the stage check is next, with a chief "
+                          "pilot or a check instructor other than the usual instructor.")
     for view in kinds:
         if view.trend.state == "rusty":
             needed.append(f"{view.label}: rusty; fly it again with an instructor until it is back at standard.")
@@ -187,8 +270,8 @@ def build(session: Session, *, viewer: Person, pilot_id: int, selected_key: str 
         selected = max(kinds, key=lambda k: (k.trend.last_flown_on, k.trend.attempts))
     charts = []
     if selected is not None:
-        for data in (touchdown_chart(selected), flare_chart(selected, source)):
-            charts.append(ChartView(svg=trend_chart_svg(data), summary=describe(data)))
+        for data, words in ((touchdown_chart(selected), touchdown_words), (flare_chart(selected, source), flare_words)):
+            charts.append(ChartView(svg=trend_chart_svg(data), summary=describe(data), words=words(data)))
     return ProgressFile(
         pilot=pilot, as_of=as_of, program=program, kinds=kinds, selected=selected, charts=charts,
         recent=list(reversed(points[-RECENT_ATTEMPTS:])), needed_next=_needed_next(program, kinds),

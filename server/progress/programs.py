@@ -114,6 +114,19 @@ class ProgramProgress:
         stage = self.current_stage
         return next((lesson for lesson in stage.lessons if not lesson.confirmed), None) if stage else None
 
+    @property
+    def position_lesson(self) -> LessonProgress | None:
+        """Where the student works now: the first lesson of the current stage that the records do not yet meet."""
+        stage = self.current_stage
+        return next((lesson for lesson in stage.lessons if not (lesson.confirmed or lesson.attempts_met)),
+                    None) if stage else None
+
+    @property
+    def awaiting_confirmation(self) -> list[LessonProgress]:
+        """Lessons of the current stage the records meet that no instructor has confirmed yet."""
+        stage = self.current_stage
+        return [lesson for lesson in stage.lessons if lesson.attempts_met and not lesson.confirmed] if stage else []
+
 
 def _standard_family(session: Session, standard_id: int) -> set[int]:
     """A standard and every later version that supersedes it."""

@@ -4,6 +4,7 @@ from fastapi.responses import RedirectResponse
 
 from server.deps import DbSession
 from server.logbook import access
+from server.logbook import service as logbook
 from server.people.deps import PageUser
 from server.people.models import Person
 from server.progress import file as progress_file
@@ -11,6 +12,8 @@ from server.progress import programs
 from server.web import render
 
 router = APIRouter(include_in_schema=False)
+
+WAITING_SHOWN = 5  # the newest records waiting for the pilot's acknowledgement; the rest a link away
 
 
 @router.get("/progress", name="progress_index")
@@ -28,8 +31,11 @@ def file_context(db, person: Person, pilot_id: int, kind: str | None = None, sou
     built = progress_file.build(db, viewer=person, pilot_id=pilot_id, selected_key=kind,
                                 source="measured" if source == "measured" else "all")
     enrolment = built.program.enrolment if built.program else None
+    waiting = logbook.list_sorties(db, viewer=person, pilot_id=pilot_id, state="signed", limit=WAITING_SHOWN + 1)
     return {
         "person": person, "file": built,
+        "waiting": waiting[:WAITING_SHOWN], "more_waiting": len(waiting) > WAITING_SHOWN,
+        "can_acknowledge": person.id == pilot_id,
         "usual_instructor": db.get(Person, enrolment.instructor_id) if enrolment and enrolment.instructor_id else None,
         "can_confirm": person.has_role("instructor", "chief_pilot") and person.id != pilot_id,
         "can_check": enrolment is not None and programs.may_check(person, enrolment),

@@ -10,7 +10,7 @@ from server.safety.schemas import (
     DigestRead,
     DigestRowRead,
     Dimension,
-    FlagCode,
+    Category,
     FlaggedAttemptRead,
     FlaggedAttemptsRead,
 )
@@ -20,7 +20,7 @@ router = APIRouter(tags=["safety"])
 
 
 def row_read(row: safety.DigestRow) -> DigestRowRead:
-    codes = (*safety.FLAG_CODES, safety.ANY_FLAG)
+    codes = safety.CATEGORIES
     return DigestRowRead(key=row.key, label=row.label, attempts=row.attempts,
                          counts={c: row.counts.get(c, 0) for c in codes}, per_100={c: row.per_100(c) for c in codes})
 
@@ -49,7 +49,7 @@ def digest(db: DbSession, person: ApiUser, date_from: date | None = None, date_t
 
 @router.get("/safety/attempts", response_model=FlaggedAttemptsRead)
 def flagged_attempts(db: DbSession, person: ApiUser, by: Dimension | None = None,
-                     key: str | None = Query(default=None, max_length=20), flag: FlagCode | None = None,
+                     key: str | None = Query(default=None, max_length=20), flag: Category | None = None,
                      date_from: date | None = None, date_to: date | None = None):
     """The flagged signed attempts behind one count of the digest."""
     require_role(person, "chief_pilot")

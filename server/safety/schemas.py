@@ -9,6 +9,8 @@ from server.logbook.schemas import FlagRead
 # The same names as server.safety.service.DIMENSIONS and FLAG_CODES (a test keeps them equal).
 Dimension = Literal["instructor", "aircraft", "site", "da_band", "month"]
 FlagCode = Literal["nr_limits", "takeover", "hv_avoid", "fast_touchdown"]
+# What a list of attempts can be asked for: a flag, or flares begun outside the expected band.
+Category = Literal["nr_limits", "takeover", "hv_avoid", "fast_touchdown", "flare_band"]
 
 
 class DigestRowRead(BaseModel):

@@ -7,7 +7,7 @@ no attempt is read into Python to be counted.
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
 
-from sqlalchemy import Integer, and_, case, cast, func, literal_column, select, true
+from sqlalchemy import Integer, and_, case, cast, func, literal_column, or_, select, true
 from sqlalchemy.orm import Session, selectinload
 
 from server.csv_export import csv_text
@@ -26,6 +26,11 @@ FLAG_LABELS = {
 }
 FLAG_CODES = tuple(FLAG_LABELS)
 ANY_FLAG = "any"
+# Not a flag (the expected band is guidance beside the flight manual) but a category the digest counts:
+# attempts whose flare began below or above the band expected for that day's density altitude and weight.
+FLARE_BAND = "flare_band"
+FLARE_BAND_LABEL = "Flare begun outside the expected band"
+CATEGORIES = (*FLAG_CODES, ANY_FLAG, FLARE_BAND)  # what each digest row counts
 DIMENSION_LABELS = {
     "instructor": "Instructor",
     "aircraft": "Aircraft",
@@ -76,6 +81,20 @@ def date_range(session: Session, *, date_from: date | None, date_to: date | None
     if date_from > date_to:
         raise Invalid("The start of the date range must not be after its end.")
     return date_from, date_to
+
+
+def preset_range(session: Session, preset: str) -> tuple[date, date]:
+    """The dates of a named period ending today at the school: last 7 or 30 days, this quarter, 12 months."""
+    today = people.school_today(session)
+    if preset == "7d":
+        return today - timedelta(days=6), today
+    if preset == "30d":
+        return today - timedelta(days=29), today
+    if preset == "quarter":
+        return date(today.year, 3 * ((today.month - 1) // 3) + 1, 1), today
+    if preset == "12m":
+        return today - timedelta(days=DEFAULT_DAYS), today
+    raise Invalid("The period must be one of: 7d, 30d, quarter, 12m.")
 
 
 # ---- SQL pieces ------------------------------------------------------------------------------
@@ -132,6 +151,14 @@ def _base(session: Session, *columns, date_from: date, date_to: date):
             .where(_standing_signed(date_from, date_to)))
 
 
+def _flare_outside_band():
+    """The flare began below or above the band stored on the attempt (both recorded)."""
+    return and_(Attempt.flare_height_ft.is_not(None), Attempt.flare_band_low_ft.is_not(None),
+                Attempt.flare_band_high_ft.is_not(None),
+                or_(Attempt.flare_height_ft < Attempt.flare_band_low_ft,
+                    Attempt.flare_height_ft > Attempt.flare_band_high_ft))
+
+
 def _with_flags(session: Session, query, codes=FLAG_CODES):
     elements, code = _flag_code_rows(session)
     return query.join(elements, true()).where(code.in_(codes)), code
@@ -148,7 +175,7 @@ def digest(session: Session, *, date_from: date | None = None, date_to: date | N
         by[name] = _table(session, name, date_from, date_to)
         if name == DIMENSIONS[0]:
             total.attempts = sum(row.attempts for row in by[name])
-            for code in (*FLAG_CODES, ANY_FLAG):
+            for code in CATEGORIES:
                 total.counts[code] = sum(row.counts.get(code, 0) for row in by[name])
     return Digest(date_from=date_from, date_to=date_to, total=total, by=by)
 
@@ -160,13 +187,14 @@ def _table(session: Session, name: str, date_from: date, date_to: date) -> list[
     counts = [func.count(Attempt.id.distinct())]
     counts += [func.count(case((code == flag, Attempt.id)).distinct()) for flag in FLAG_CODES]
     counts.append(func.count(case((code.in_(FLAG_CODES), Attempt.id)).distinct()))
+    counts.append(func.count(case((_flare_outside_band(), Attempt.id)).distinct()))
     # The outer join keeps attempts without flags: one row each, with a NULL code.
     query = (_base(session, key, *counts, date_from=date_from, date_to=date_to)
              .outerjoin(elements, true()).group_by(key))
     rows = {}
     for value, attempts, *flagged in session.execute(query):
         row = DigestRow(key=_key_text(value), label="", attempts=attempts,
-                        counts=dict(zip((*FLAG_CODES, ANY_FLAG), flagged, strict=True)))
+                        counts=dict(zip(CATEGORIES, flagged, strict=True)))
         rows[row.key] = row
     labels = _labels(session, name, list(rows))
     for row in rows.values():
@@ -209,6 +237,21 @@ def _labels(session: Session, name: str, keys: list[str]) -> dict[str, str]:
     return {}
 
 
+def months_to(session: Session, *, end: date, months: int = 12) -> list[DigestRow]:
+    """The digest by month for the `months` calendar months ending with `end`'s month; empty months count 0."""
+    first = date(end.year, end.month, 1)
+    for _ in range(months - 1):
+        first = date(first.year - (first.month == 1), (first.month - 2) % 12 + 1, 1)
+    found = {row.key: row for row in _table(session, "month", first, end)}
+    rows, month = [], first
+    while month <= end:
+        key = month.strftime("%Y-%m")
+        rows.append(found.get(key) or DigestRow(key=key, label=month.strftime("%B %Y"), attempts=0,
+                                                counts=dict.fromkeys(CATEGORIES, 0)))
+        month = date(month.year + (month.month == 12), month.month % 12 + 1, 1)
+    return rows
+
+
 def group_label(session: Session, name: str, key: str) -> str:
     """How the digest names one group, for the heading of the attempts behind it."""
     if name not in DIMENSIONS:
@@ -237,10 +280,13 @@ def flagged_attempts(session: Session, *, by: str | None = None, key: str | None
                      date_from: date | None = None, date_to: date | None = None) -> tuple[list[FlaggedAttempt], bool]:
     """The flagged attempts behind one count of the digest, newest first; True when the list was cut."""
     date_from, date_to = date_range(session, date_from=date_from, date_to=date_to)
-    if flag is not None and flag not in FLAG_CODES:
-        raise Invalid(f"The flag must be one of: {', '.join(FLAG_CODES)}.")
-    query, _ = _with_flags(session, _base(session, Attempt.id, date_from=date_from, date_to=date_to),
-                           codes=(flag,) if flag else FLAG_CODES)
+    if flag is not None and flag not in (*FLAG_CODES, FLARE_BAND):
+        raise Invalid(f"The flag must be one of: {', '.join((*FLAG_CODES, FLARE_BAND))}.")
+    query = _base(session, Attempt.id, date_from=date_from, date_to=date_to)
+    if flag == FLARE_BAND:
+        query = query.where(_flare_outside_band())
+    else:
+        query, _ = _with_flags(session, query, codes=(flag,) if flag else FLAG_CODES)
     if by is not None:
         if by not in DIMENSIONS:
             raise Invalid(f"Group by one of: {', '.join(DIMENSIONS)}.")
@@ -262,14 +308,14 @@ def flagged_attempts(session: Session, *, by: str | None = None, key: str | None
 def digest_csv(result: Digest) -> str:
     """The digest as shown: one line per group of each dimension, counts and rates per 100 attempts."""
     header = ["dimension", "group", "date_from", "date_to", "attempts"]
-    for code in (*FLAG_CODES, ANY_FLAG):
+    for code in CATEGORIES:
         header += [f"{code}_count", f"{code}_per_100"]
     lines = []
     tables = [("all", [result.total])] + [(name, rows) for name, rows in result.by.items()]
     for name, rows in tables:
         for row in rows:
             line = [name, row.label, result.date_from.isoformat(), result.date_to.isoformat(), row.attempts]
-            for code in (*FLAG_CODES, ANY_FLAG):
+            for code in CATEGORIES:
                 rate = row.per_100(code)
                 line += [row.counts.get(code, 0), "" if rate is None else f"{rate:.1f}"]
             lines.append(line)

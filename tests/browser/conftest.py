@@ -101,3 +101,50 @@ def axe_violations(page, axe_path: Path) -> list[str]:
             nodes: v.nodes.map(n => n.target.join(" ") + ": " + n.failureSummary.replace(/\\s+/g, " "))}));
     }""")
     return [f"{v['id']} ({v['impact']}): {v['help']} at {node}" for v in found for node in v["nodes"]]
+
+
+SCREENSHOTS = PROJECT_ROOT / "tests" / "browser" / "screenshots"
+
+
+def screenshot(page, name: str) -> Path:
+    """Save the whole page as the 1024 px tablet shows it, for a reviewer to look at without running the app.
+
+    Kept in the repository (README: "Screenshots"); each run overwrites the file of the same name.
+    """
+    SCREENSHOTS.mkdir(parents=True, exist_ok=True)
+    path = SCREENSHOTS / f"{name}.png"
+    page.screenshot(path=str(path), full_page=True, animations="disabled")
+    return path
+
+
+def fits_the_width(page) -> bool:
+    """Nothing runs off the right edge of the 1024 px tablet."""
+    return page.evaluate("document.documentElement.scrollWidth <= window.innerWidth")
+
+
+def nav_on_one_line(page) -> bool:
+    """Every link of the main navigation sits on the same line as the first."""
+    return page.evaluate("""() => {
+        const links = [...document.querySelectorAll('.topbar nav a, .topbar .signout > *')];
+        const top = links[0].getBoundingClientRect().top;
+        return links.every(a => Math.abs(a.getBoundingClientRect().top - top) < 12);
+    }""")
+
+
+@pytest.fixture
+def chief_program(app, world):
+    """A one-stage syllabus made through the API, as a chief pilot's script would."""
+    from fastapi.testclient import TestClient
+
+    from server.people import service as people
+    from server.people.models import Person
+
+    with app.state.sessions() as session:
+        token = people.issue_token(session, person=session.get(Person, world.chief.id))
+        session.commit()
+    client = TestClient(app, headers={"Authorization": f"Bearer {token}"})
+    made = client.post("/api/v1/programs", json={"name": "Private syllabus (walk)", "stages": [
+        {"name": "Stage one", "lessons": [{"name": "First autorotations", "requirements": [
+            {"maneuver": "straight_in", "termination": "power_recovery", "attempts_needed": 2}]}]}]})
+    assert made.status_code == 201, made.text
+    return made.json()

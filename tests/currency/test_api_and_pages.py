@@ -3,11 +3,10 @@ import csv
 import io
 import re
 from datetime import UTC, date, datetime, timedelta
-from html.parser import HTMLParser
 
 from icalendar import Calendar
 
-from tests.support import make_sortie
+from tests.support import cell_texts, make_sortie, parsed, read_text
 
 RULE = {"name": "Touchdowns every 30 days", "applies_to_roles": ["student"], "terminations": ["touchdown"],
         "window_days": 30, "min_count": 1, "warn_days": 7}
@@ -77,33 +76,6 @@ def test_access_to_currency(world, chief_client, instructor_client, student_clie
     assert student_client.get("/currency/board.csv").status_code == 403
 
 
-class _Table(HTMLParser):
-    """The text of each cell of the board's table body."""
-
-    def __init__(self):
-        super().__init__()
-        self.rows, self._in_body, self._cell = [], False, None
-
-    def handle_starttag(self, tag, attrs):
-        if tag == "tbody":
-            self._in_body = True
-        elif self._in_body and tag == "tr":
-            self.rows.append([])
-        elif self._in_body and tag == "td":
-            self._cell = []
-
-    def handle_endtag(self, tag):
-        if tag == "tbody":
-            self._in_body = False
-        elif tag == "td" and self._cell is not None:
-            self.rows[-1].append(" ".join("".join(self._cell).split()))
-            self._cell = None
-
-    def handle_data(self, data):
-        if self._cell is not None:
-            self._cell.append(data)
-
-
 def _board_world(chief_client, world, db):
     chief_client.api("POST", "/api/v1/rules", json=RULE)
     chief_client.api("POST", "/api/v1/rules", json={"name": "Instructors: any, 90 days", "applies_to_roles":
@@ -125,26 +97,56 @@ def test_board_sorted_soonest_trouble_first_with_words_and_dates(chief_client, w
         ("Sam Student", "Touchdowns ", "due_soon", "2026-12-01"),
         ("Ivo Instructor", "Instructors", "current", "2027-01-18"),
     ]
-    page = chief_client.get("/currency", params={"as_of": "2026-11-25"})
-    table = _Table()
-    table.feed(page.text)
-    assert table.rows[3][3:5] == ["◐ Due soon", "until 1 December 2026"]
-    assert table.rows[2][3:5] == ["✕ Lapsed", "since 1 November 2026"]
+    page = parsed(chief_client.get("/currency", params={"as_of": "2026-11-25"}))
+    grid = page.find("table", id="board-table")
+    heads = [read_text(th) for th in grid.find("thead").find_all("th")]
+    assert heads[0] == "Pilot" and len(heads) == 3  # one column per rule
+    lines = {row[0].split(" ")[0]: row for row in cell_texts(grid)}
+    touchdowns = 1 + [h.startswith("Touchdowns") for h in heads[1:]].index(True)
+    # One row per pilot; each cell the status in a word and a shape (read as its word), with its date.
+    assert lines["Sam"][touchdowns] == "Due soon until 1 Dec 2026"
+    assert lines["Tess"][touchdowns] == "Lapsed since 1 Nov 2026"
+    assert lines["Ivo"][3 - touchdowns] == "Current until 18 Jan 2027"
+    assert lines["Ivo"][touchdowns] == "does not apply"
+    order = [row[0] for row in cell_texts(grid)]
+    assert [name.split(" ")[0] for name in order] == ["Chief", "Olga", "Tess", "Sam", "Ivo"]
+    shapes = [s.get_text() for s in grid.find("tbody").find_all("tr")[3].find_all(class_="shape")]
+    assert shapes == ["◐"]
+    # A pilot's name opens their currency page, which leads on to their progress file.
+    link = grid.find("a", string="Sam Student")["href"]
+    assert link == f"http://testserver/currency/people/{world.student.id}"
+    person = parsed(chief_client.get(link))
+    assert person.find("a", href=f"http://testserver/people/{world.student.id}/progress") is not None
 
 
-def test_csv_holds_exactly_the_rows_shown(chief_client, world, db):
+def test_csv_holds_every_cell_shown(chief_client, world, db):
     _board_world(chief_client, world, db)
     for filters in ({"as_of": "2026-11-25"}, {"as_of": "2026-11-25", "role": "student"},
                     {"as_of": "2026-12-05", "status": "lapsed"}):
-        page = chief_client.get("/currency", params=filters)
-        table = _Table()
-        table.feed(page.text)
+        grid = parsed(chief_client.get("/currency", params=filters)).find("table", id="board-table")
+        # The full rule name is in each column heading's "what it asks".
+        full = [th.find(popover=True).find("strong").get_text() for th in grid.find("thead").find_all("th")[1:]]
+        shown = set()
+        for line in grid.find("tbody").find_all("tr"):
+            name = line.find("th").find("a").get_text()
+            for rule, cell in zip(full, line.find_all("td"), strict=True):
+                if read_text(cell) != "does not apply":
+                    shown.add((name, rule, cell.find(class_="currency").get_text(" ", strip=True).split(" ")[1]))
         exported = chief_client.get("/currency/board.csv", params=filters)
         assert exported.headers["content-type"].startswith("text/csv")
         rows = list(csv.reader(io.StringIO(exported.text.lstrip("\ufeff"))))
         assert rows[0][0] == "Pilot"
-        shown = [[cell.lstrip("●◐✕○ ") for cell in row] for row in table.rows]
-        assert rows[1:] == shown and shown, filters
+        assert {(r[0], r[2], r[3].split(" ")[0]) for r in rows[1:]} == shown and shown, filters
+        assert len(rows) - 1 == len(shown)
+
+
+def test_board_pages_pilots_and_filters_stay_in_the_address(chief_client, world, db):
+    _board_world(chief_client, world, db)
+    students = parsed(chief_client.get("/currency", params={"as_of": "2026-11-25", "role": "student"}))
+    assert [r[0].split(" ")[0] for r in cell_texts(students.find("table", id="board-table"))] == ["Tess", "Sam"]
+    assert students.find("select", id="f-role").find("option", selected=True)["value"] == "student"
+    lapsed = parsed(chief_client.get("/currency", params={"as_of": "2026-11-25", "status": "lapsed"}))
+    assert [r[0].split(" ")[0] for r in cell_texts(lapsed.find("table", id="board-table"))] == ["Tess"]
 
 
 def _new_feed(client, whose: str) -> str:

@@ -49,7 +49,11 @@ def test_student_sees_program_position_states_in_words_charts_and_recent_attempt
     figures = doc.find_all("figure", "chart")
     assert len(figures) == 2
     assert figures[0].find("svg").find("title").text().startswith("Touchdown speed")
-    assert "Touchdown speed over the last 1 attempt" in figures[0].find("figcaption").text()
+    # The caption speaks the pilot's language; the statistics are named in the footnote for instructors.
+    assert figures[0].find("figcaption").text() == "Your one touchdown so far was at 3 kt, at or under the 8 kt maximum."
+    assert "EWMA" not in figures[0].find("figcaption").text()
+    note = doc.find("div", id="stats-note").text()
+    assert "NIST/SEMATECH" in note and "Touchdown speed over the last 1 attempt" in note
     assert len(doc.find("table", "recent").find_all("tr")) == 1 + 5
 
 
@@ -131,7 +135,19 @@ def test_chart_has_band_ewma_limits_units_and_a_shape_for_each_attempt():
     assert len(outside) == 1 and "9.5 kt, outside the band" in outside[0].text()
     labels = [t.text() for t in root.find_all("text")]
     assert "Touchdown speed (kt)" in labels
-    assert "01 Sep 2026" in labels and "03 Sep 2026" in labels
+    # The x axis counts attempts, so its ticks are attempt numbers; the dates they span are said once.
+    assert [label for label in labels if label.startswith("#")] == ["#1", "#2", "#3"]
+    assert "Attempt number, in flight order (01 Sep 2026 to 03 Sep 2026)" in labels
+
+
+def test_a_chart_of_the_last_attempts_numbers_them_from_the_pilots_first():
+    svg = trend_chart_svg(ChartData(
+        chart_id="t", title="Flare height, test", quantity="Flare height", unit="ft AGL", values=[90.0, 95.0],
+        dates=[date(2026, 9, 1), date(2026, 9, 2)], band_low=[70.0] * 2, band_high=[110.0] * 2, ewma=[90.0, 92.0],
+        ucl=[100.0] * 2, lcl=[80.0] * 2, first_number=61, count_noun="flare"))
+    labels = [t.text() for t in parse(svg).find_all("text")]
+    assert [label for label in labels if label.startswith("#")] == ["#61", "#62"]
+    assert "Flare number, in flight order (01 Sep 2026 to 02 Sep 2026)" in labels
 
 
 def test_chart_axis_covers_the_limits_and_the_band():

@@ -71,6 +71,7 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("GET", "/redoc"): PUBLIC,
     ("MOUNT", "/static"): PUBLIC,
     ("GET", "/signin"): PUBLIC,
+    ("GET", "/favicon.ico"): PUBLIC,
     ("GET", "/sw.js"): PUBLIC,  # the sortie sheet's offline worker: a static script
     ("POST", "/signin"): PUBLIC,
     # A calendar feed is reached by the secret in its link alone (calendar apps cannot sign in).
@@ -110,6 +111,29 @@ ROUTES: dict[tuple[str, str], Access] = {
     ("GET", "/setup/types/{type_id}/edit"): page(CHIEF_ADMIN),
     ("POST", "/setup/types/{type_id}/edit"): CHANGE_PAGE,
     ("GET", "/setup/types/{type_id}"): page(CHIEF_ADMIN),
+    ("GET", "/setup/people"): page(CHIEF_ADMIN),
+    ("GET", "/setup/people/new"): page(CHIEF_ADMIN),
+    ("POST", "/setup/people/new"): CHANGE_PAGE,
+    ("GET", "/setup/people/{person_id}"): page(CHIEF_ADMIN),
+    ("GET", "/setup/people/{person_id}/edit"): page(CHIEF_ADMIN),
+    ("POST", "/setup/people/{person_id}/edit"): CHANGE_PAGE,
+    ("POST", "/setup/people/{person_id}/deactivate"): CHANGE_PAGE,
+    ("POST", "/setup/people/{person_id}/reactivate"): CHANGE_PAGE,
+    ("POST", "/setup/people/{person_id}/enrol"): CHANGE_PAGE,
+    ("GET", "/setup/aircraft"): page(CHIEF_ADMIN),
+    ("GET", "/setup/aircraft/new"): page(CHIEF_ADMIN),
+    ("POST", "/setup/aircraft/new"): CHANGE_PAGE,
+    ("GET", "/setup/aircraft/{aircraft_id}/edit"): page(CHIEF_ADMIN),
+    ("POST", "/setup/aircraft/{aircraft_id}/edit"): CHANGE_PAGE,
+    ("POST", "/setup/aircraft/{aircraft_id}/deactivate"): CHANGE_PAGE,
+    ("POST", "/setup/aircraft/{aircraft_id}/reactivate"): CHANGE_PAGE,
+    ("GET", "/setup/sites"): page(CHIEF_ADMIN),
+    ("GET", "/setup/sites/new"): page(CHIEF_ADMIN),
+    ("POST", "/setup/sites/new"): CHANGE_PAGE,
+    ("GET", "/setup/sites/{site_id}/edit"): page(CHIEF_ADMIN),
+    ("POST", "/setup/sites/{site_id}/edit"): CHANGE_PAGE,
+    ("POST", "/setup/sites/{site_id}/deactivate"): CHANGE_PAGE,
+    ("POST", "/setup/sites/{site_id}/reactivate"): CHANGE_PAGE,
     ("GET", "/setup/standards"): page(CHIEF_ADMIN),
     ("GET", "/setup/standards/new"): page(CHIEF_ADMIN),
     ("POST", "/setup/standards/new"): CHANGE_PAGE,
@@ -306,6 +330,7 @@ def school(app, db, world):
                        files={"file": ("people.csv", b"Name,Email\r\nMatrix Newcomer,newcomer@school.example\r\n")})
     assert batch.status_code == 200, batch.text
     common = {"token_id": token_id, "batch_id": batch.json()["batch_id"], "type_id": world.helicopter.id,
+              "aircraft_id": world.aircraft.id, "site_id": world.site.id,
               "program_id": program["id"], "lesson_id": lesson_id, "index": 1,
               "standard_id": standard["id"], "rule_id": rule["id"], "feed_id": feed["id"], "secret": secret}
     return {
