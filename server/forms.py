@@ -22,10 +22,14 @@ def plain_words(item: dict) -> str:
         return "Required."
     if kind in ("float_parsing", "float_type", "int_parsing", "int_type", "int_from_float", "finite_number"):
         return "Give a number, such as 65."
-    if kind in ("greater_than_equal", "greater_than"):
-        return f"At least {_figure(ctx.get('ge', ctx.get('gt')))}."
-    if kind in ("less_than_equal", "less_than"):
-        return f"At most {_figure(ctx.get('le', ctx.get('lt')))}."
+    if kind == "greater_than_equal":
+        return f"At least {_figure(ctx.get('ge'))}."
+    if kind == "greater_than":
+        return f"Greater than {_figure(ctx.get('gt'))}."
+    if kind == "less_than_equal":
+        return f"At most {_figure(ctx.get('le'))}."
+    if kind == "less_than":
+        return f"Less than {_figure(ctx.get('lt'))}."
     if kind in ("literal_error", "enum"):
         return "Pick one of the choices shown."
     if kind.startswith(("datetime", "date", "timezone")):

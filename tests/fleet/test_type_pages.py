@@ -102,7 +102,7 @@ def test_other_type_figures_are_checked_on_the_form(chief_client):
     assert "the power-off rotor RPM low limit must be below the high limit" in limits.text
     radius = chief_client.form_post("/setup/types/new", TYPE_FORM | {"rotor_radius_ft": "-3"})
     assert radius.status_code == 422
-    assert 'id="e-f-rotor_radius_ft"' in radius.text and "greater than 0" in radius.text
+    assert 'id="e-f-rotor_radius_ft"' in radius.text and "Greater than 0" in radius.text
 
 
 def test_editing_a_type_keeps_its_points_in_the_textarea_and_saves_changes(chief_client, world, db):
