@@ -72,10 +72,11 @@ def create_app(settings: Settings | None = None) -> FastAPI:
 
     # Writing requests take turns (server/write_queue.py); sign-in checks its password outside.
     app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
-    app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths)
+    app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths + settings.import_upload_paths)
     # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
     app.add_middleware(BodyLimit, default_bytes=settings.max_body_bytes,
-                       larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths])
+                       larger=[(path, settings.track_upload_max_bytes) for path in settings.track_upload_paths]
+                       + [(path, settings.import_upload_max_bytes) for path in settings.import_upload_paths])
     app.add_middleware(SecurityHeaders)  # inside GZip, so it sees bodies uncompressed
     app.add_middleware(GZipMiddleware, minimum_size=500)
     app.add_middleware(HeadAsGet)  # outermost: the GET's headers, Content-Length included, without the body

@@ -33,6 +33,9 @@ class Settings(BaseSettings):
     show_demo_sign_ins: bool = False
     # Recorded tracks are larger than any other upload: a 2-hour 10 Hz GPX file is about 15 MB.
     track_upload_max_bytes: int = 20_000_000
+    # Spreadsheets of earlier records (CSV or XLSX): the other routes that take a file.
+    import_upload_paths: tuple[str, ...] = ("/api/v1/imports", "/setup/imports")
+    import_upload_max_bytes: int = 10_000_000
 
 
 @lru_cache

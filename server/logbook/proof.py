@@ -13,7 +13,7 @@ from server.records.models import AuditEvent
 from server.records.proof import SignedProblem, differences
 
 # The chain entry each meaning of signature is recorded with.
-ENTRY_ACTIONS = {"instructor_certifies": "sign", "pilot_acknowledges": "acknowledge"}
+ENTRY_ACTIONS = {"instructor_certifies": "sign", "transcribed_from_records": "sign", "pilot_acknowledges": "acknowledge"}
 
 
 def _canonical(record: dict) -> dict:
