@@ -20,7 +20,7 @@ def test_each_role_sees_its_own_links(chief_client, instructor_client, student_c
     assert _nav(student_client)[0] == ["Sorties", "Progress", "Programs"]
     assert _nav(instructor_client)[0] == ["Sorties", "Start a sortie", "Progress", "Programs"]
     assert _nav(chief_client)[0] == ["Sorties", "Start a sortie", "Progress", "Programs", "Readiness",
-                                     "Safety digest", "Setup"]
+                                     "Safety digest", "Standardisation", "Setup"]
 
 
 @pytest.mark.parametrize(("path", "marked"), [

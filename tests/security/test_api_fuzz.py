@@ -60,7 +60,7 @@ schema = schemathesis.openapi.from_dict(tuples_as_arrays(_document))
 
 
 @schema.parametrize()
-@settings(max_examples=MAX_EXAMPLES, deadline=None, database=None,
+@settings(max_examples=MAX_EXAMPLES, deadline=None, database=None, derandomize=True,
           suppress_health_check=list(HealthCheck))
 def test_the_api_keeps_to_its_schema_and_never_fails(case, app, chief_token):
     case.call_and_validate(app=app, headers={"Authorization": f"Bearer {chief_token}"},

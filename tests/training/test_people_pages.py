@@ -74,17 +74,19 @@ def test_a_new_student_is_enrolled_from_their_page(chief_client, db, world):
     answer = chief_client.form_post(f"/setup/people/{world.student.id}/enrol", {
         "program_id": program["id"], "instructor_id": world.instructor.id, "started_on": "2026-11-02"})
     assert answer.status_code == 303
-    enrolment = db.query(Enrolment).filter_by(student_id=world.student.id).one()
+    enrolment = db.query(Enrolment).filter_by(student_id=world.student.id, program_id=program["id"]).one()
     assert (enrolment.program_id, enrolment.instructor_id, enrolment.started_on) == (
         program["id"], world.instructor.id, date(2026, 11, 2))
     page = parsed(chief_client.get(f"/setup/people/{world.student.id}"))
-    assert cell_texts(page.find("section", attrs={"aria-labelledby": "enrol-h"}).find("table")) == [
-        ["Private syllabus (test)", "Ivo Instructor", "02 Nov 2026", "Active"]]
+    rows = cell_texts(page.find("section", attrs={"aria-labelledby": "enrol-h"}).find("table"))
+    # The new enrolment is active; the test school's own enrolment of the student has ended.
+    assert ["Private syllabus (test)", "Ivo Instructor", "02 Nov 2026", "Active"] in rows
+    assert all(row[3] == "Ended" for row in rows if row[0] != "Private syllabus (test)")
     # A program that does not exist is refused with a reason, and nothing changes.
     bad = chief_client.form_post(f"/setup/people/{world.student.id}/enrol", {"program_id": "999",
                                                                              "started_on": "2026-11-02"})
     assert bad.status_code == 404 and parsed(bad).find(role="alert") is not None
-    assert db.query(Enrolment).filter_by(student_id=world.student.id).count() == 1
+    assert db.query(Enrolment).filter_by(student_id=world.student.id).count() == 2  # the test school's own and the new one
 
 
 def test_roles_and_name_are_edited(chief_client, db, world):
