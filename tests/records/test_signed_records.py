@@ -35,7 +35,7 @@ def signed_file(migrated_file, tmp_path_factory):
     with school.sessions() as session:
         instructor = session.get(Person, school.world.instructor.id)
         second = logbook.amend_sortie(session, actor=instructor, sortie=session.get(Sortie, first.id),
-                                      reason="touchdown speed re-read from the video")
+                                      reason="touchdown speed corrected from the flight data log")
         logbook.record_instructor_signature(session, actor=instructor, sortie=second)
         logbook.acknowledge_sortie(session, actor=session.get(Person, school.world.student.id), sortie=second)
         session.commit()
