@@ -22,6 +22,7 @@ from server.db import make_engine, make_session_factory, transaction
 from server.migrate import upgrade
 from server.records import audit
 from server.records.models import AuditEvent
+from tests.benchmarks import machine
 
 
 def measure(url: str, threads: int, per_thread: int) -> dict:
@@ -60,7 +61,8 @@ def main() -> None:
     parser.add_argument("--postgres", help="a PostgreSQL URL; a database of its own is made and dropped")
     parser.add_argument("--threads", type=int, default=16)
     parser.add_argument("--per-thread", type=int, default=50)
-    args = parser.parse_args()
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     if args.postgres:
         name = f"flarebook_bench_{uuid.uuid4().hex[:8]}"
         admin = create_engine(args.postgres, isolation_level="AUTOCOMMIT")

@@ -29,6 +29,7 @@ from server.people.models import ApiToken, UserSession
 from server.people.security import sha256_hex
 from server.types import utcnow
 from tests.benchmarks.school_generator import AS_OF, NOW, build_school
+from tests.benchmarks import machine
 
 SIZES = (250_000, 500_000, 1_000_000)
 TOKEN = "fbk_bench-token-for-the-chief-pilot"
@@ -148,7 +149,8 @@ def main() -> None:
     parser.add_argument("--postgres", help="an admin URL; the benchmark makes and drops a database of its own")
     parser.add_argument("--sizes", default=",".join(map(str, SIZES)))
     parser.add_argument("--runs", type=int, default=5)
-    args = parser.parse_args()
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     sizes = [int(s) for s in args.sizes.split(",")]
     if args.postgres:
         report("PostgreSQL", run_postgres(args.postgres, sizes, args.runs))

@@ -31,6 +31,7 @@ from server.people import service as people
 from server.people.models import Person
 from server.records import audit
 from tests.support import build_world
+from tests.benchmarks import machine
 
 HEADER = ["Date", "Time", "Student", "Instructor", "Registration", "Site", "Manoeuvre", "Termination",
           "Descent airspeed (kt)", "NR low (%)", "NR high (%)", "Flare height (ft)", "Touchdown speed (kt)",
@@ -72,8 +73,8 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--rows", type=int, default=10_000)
     parser.add_argument("--format", choices=("csv", "xlsx"), default="csv")
-    args = parser.parse_args()
-    print(f"load average: {' '.join(f'{x:.2f}' for x in os.getloadavg())} (measure on an idle machine)")
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     folder = tempfile.mkdtemp(prefix="flarebook-bench-import-")
     url = os.environ.get("FLAREBOOK_BENCH_DATABASE_URL") or f"sqlite:///{Path(folder) / 'bench.sqlite3'}"
     upgrade(url)

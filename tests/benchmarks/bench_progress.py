@@ -30,6 +30,7 @@ from server.people.models import Person
 from server.training.models import Enrolment, Lesson, LessonRequirement, Program, Stage
 from tests.conftest import sign_in
 from tests.support import build_world
+from tests.benchmarks import machine
 
 KINDS = [("straight_in", "power_recovery", 4), ("straight_in", "touchdown", 4), ("turn_180", "power_recovery", 2),
          ("turn_180", "touchdown", 2), ("turn_360", "touchdown", 1), ("hovering", "to_hover", 1)]
@@ -107,7 +108,8 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--attempts", type=int, default=5000)
     parser.add_argument("--repeat", type=int, default=15)
-    args = parser.parse_args()
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     with tempfile.TemporaryDirectory() as folder:
         url = os.environ.get("FLAREBOOK_BENCH_DATABASE_URL") or f"sqlite:///{folder}/bench.sqlite3"
         upgrade(url)

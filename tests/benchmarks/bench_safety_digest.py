@@ -29,6 +29,7 @@ from server.logbook.models import Attempt, Sortie
 from server.migrate import upgrade
 from server.safety import service as safety
 from tests.benchmarks.school_generator import build_school
+from tests.benchmarks import machine
 
 DATE_FROM, DATE_TO = date(2025, 12, 1), date(2026, 11, 30)
 FLAG_SHARE = 0.12
@@ -90,7 +91,8 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--attempts", type=int, default=100_000)
     parser.add_argument("--repeat", type=int, default=7)
-    args = parser.parse_args()
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     url = os.environ.get("FLAREBOOK_BENCH_DATABASE_URL")
     folder = tempfile.TemporaryDirectory()
     url = url or f"sqlite:///{Path(folder.name) / 'bench.sqlite3'}"

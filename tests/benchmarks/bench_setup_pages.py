@@ -6,6 +6,7 @@ Times, median of many runs, in-process through the app: POST /api/v1/conditions 
 sheet calls it as conditions are typed), drawing the height-velocity SVG alone for a 30-attempt sortie,
 and serving the whole type page with that chart. Goals: conditions under 20 ms, the type page under 100 ms.
 """
+import argparse
 import statistics
 import tempfile
 import time
@@ -22,6 +23,7 @@ from server.migrate import upgrade
 from server.people import service as people
 from server.people.models import Person
 from tests.support import build_world, make_sortie
+from tests.benchmarks import machine
 
 METAR = "METAR YUDO 221630Z 24008G18KT 9999 SCT010 17/16 Q1018"
 REGION = [(0, 10), (0, 400), (30, 300), (40, 100), (15, 10)]
@@ -37,6 +39,9 @@ def median_ms(fn, runs: int) -> float:
 
 
 def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
     with tempfile.TemporaryDirectory() as folder:
         url = f"sqlite:///{Path(folder) / 'bench.sqlite3'}"
         upgrade(url)

@@ -11,11 +11,11 @@ load average is printed first, and a busy machine gets no figures unless --busy-
 """
 import argparse
 import io
-import os
 import statistics
 import time
 
 from tests.compute.flight_model import FT, KT, Flight, sample
+from tests.benchmarks import machine
 
 
 def sortie(minutes: float, autorotations: int) -> Flight:
@@ -93,13 +93,8 @@ def main() -> None:
     parser.add_argument("--rate", type=float, default=10)
     parser.add_argument("--autorotations", type=int, default=12)
     parser.add_argument("--repeat", type=int, default=5)
-    parser.add_argument("--busy-ok", action="store_true", help="report even when the machine is busy")
-    args = parser.parse_args()
-    load = os.getloadavg()
-    cores = os.cpu_count() or 1
-    print(f"load average {load[0]:.2f} {load[1]:.2f} {load[2]:.2f} on {cores} cores")
-    if load[0] > 0.5 * cores and not args.busy_ok:
-        raise SystemExit("The machine is busy: no figures (run on an idle machine, or pass --busy-ok to try it).")
+    args = machine.add_busy_ok(parser).parse_args()
+    machine.check(args.busy_ok)
 
     flight = sortie(args.minutes, args.autorotations)
     rows = sample(flight, rate_hz=args.rate, seed=7, origin=(50.60, -3.40))
@@ -110,8 +105,6 @@ def main() -> None:
         full = median_seconds(lambda: full_import(data), args.repeat)
         print(f"{fmt:5s} {len(data) / 1e6:6.1f} MB  parse {parse:6.3f} s  full {full:6.3f} s  "
               f"ratio {full / parse:4.2f}  detected {found}")
-    if args.busy_ok and load[0] > 0.5 * cores:
-        print("(busy machine: these figures are not results)")
 
 
 if __name__ == "__main__":
