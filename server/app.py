@@ -70,8 +70,9 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     app.state.sessions.configure(info={"settings": settings})  # services read them with settings_of
     app.state.stranger_tally = StrangerTally(settings.stranger_audit_seconds)
 
-    # Writing requests take turns (server/write_queue.py); sign-in checks its password outside.
-    app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}))
+    # Writing requests take turns (server/write_queue.py); sign-in checks its password outside; logging
+    # an attempt through the API takes the writer's turn only for its insert, audit entry and commit.
+    app.add_middleware(WriterQueue, skip_paths=frozenset({"/signin"}), late_turn=logbook_api.LATE_TURN_ROUTES)
     app.add_middleware(TextFieldsOnly, upload_paths=settings.track_upload_paths + settings.import_upload_paths)
     # Around the writer queue, which reads whole bodies: one over the limit is refused before it is read.
     app.add_middleware(BodyLimit, default_bytes=settings.max_body_bytes,

@@ -1,5 +1,6 @@
 """Database engine, declarative base and sessions."""
 import threading
+import weakref
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -44,6 +45,11 @@ class _SQLiteWriters:
     pysqlite "serializable isolation"). Waiters on SQLite's lock poll with growing sleeps, which
     starves some of them under load; threads of this process wait on a lock of ours instead, handed
     on when the connection goes back to the pool. Other processes still meet busy_timeout.
+
+    A transaction begins as a writer (`begin_writing`, at its start) or takes the turn late
+    (`take_writers_turn`, just before its first write): its reads before that run outside any
+    transaction, as pysqlite runs them, so none of them holds a snapshot that the write would have to
+    upgrade.
     """
 
     FLAG = "flarebook_writer"
@@ -57,6 +63,16 @@ class _SQLiteWriters:
             # pysqlite's own behaviour: reads see the latest commit, BEGIN comes before the first change.
             dbapi_connection.isolation_level = ""
             return
+        self.take_turn(connection)
+
+    def take_turn(self, connection) -> None:
+        """Hold the write lock from now on, for a connection that began as a reader."""
+        if connection.info.get(self.FLAG) is not None:
+            return
+        dbapi_connection = connection.connection.dbapi_connection
+        if dbapi_connection.in_transaction:
+            # pysqlite began a transaction of its own for a write that did not take the turn first.
+            raise RuntimeError("a write began before the writer's turn was taken")
         connection.info[self.FLAG] = self.lock.acquire(timeout=10)
         dbapi_connection.isolation_level = None
         try:
@@ -74,9 +90,35 @@ class _SQLiteWriters:
             self.lock.release()
 
 
+_sqlite_writers: "weakref.WeakKeyDictionary[Engine, _SQLiteWriters]" = weakref.WeakKeyDictionary()
+
+
 def begin_writing(session: Session) -> None:
     """Start the session's transaction as a writer: on SQLite it holds the write lock from here."""
     session.connection(execution_options=WRITES)
+
+
+def take_writers_turn(session: Session) -> None:
+    """Hold the writer's turn from here to the commit; nothing when the session already holds it.
+
+    On SQLite: the process's writer lock and BEGIN IMMEDIATE. On PostgreSQL rows are locked as they
+    are written (and the audit chain takes a lock of its own), so there is nothing to take.
+    """
+    connection = session.connection()
+    writers = _sqlite_writers.get(connection.engine)
+    if writers is not None:
+        writers.take_turn(connection)
+
+
+def _turn_before_writing(session: Session, *_args) -> None:
+    # Every write through the session takes the turn first, however the transaction began.
+    if session.new or session.dirty or session.deleted:
+        take_writers_turn(session)
+
+
+def _turn_before_statement(state) -> None:
+    if state.is_insert or state.is_update or state.is_delete:
+        take_writers_turn(state.session)
 
 
 def make_engine(url: str) -> Engine:
@@ -87,7 +129,7 @@ def make_engine(url: str) -> Engine:
             Path(parsed.database).parent.mkdir(parents=True, exist_ok=True)
         engine = create_engine(url, connect_args={"check_same_thread": False, "timeout": 10})
         event.listen(engine, "connect", _sqlite_pragmas)
-        writers = _SQLiteWriters()
+        writers = _sqlite_writers[engine] = _SQLiteWriters()
         event.listen(engine, "begin", writers.begin)
         event.listen(engine.pool, "checkin", writers.done)
         event.listen(engine.pool, "invalidate", writers.done)
@@ -100,6 +142,8 @@ def make_session_factory(engine: Engine) -> sessionmaker[Session]:
 
     factory = sessionmaker(engine, expire_on_commit=False)
     event.listen(factory, "before_flush", refuse_control_characters)
+    event.listen(factory, "before_flush", _turn_before_writing)
+    event.listen(factory, "do_orm_execute", _turn_before_statement)
     return factory
 
 

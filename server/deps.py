@@ -11,6 +11,7 @@ from sqlalchemy.orm import Session
 
 from server.db import begin_writing
 from server.errors import FlarebookError, Forbidden
+from server.write_queue import LATE_TURN_STATE
 
 CSRF_HEADER = "X-CSRF-Token"
 CSRF_FIELD = "csrf_token"
@@ -30,7 +31,7 @@ def cookie_name(request: Request) -> str:
 def get_db(request: Request) -> Iterator[Session]:
     """One transaction per request, committed before the answer is sent: the one place that commits."""
     with request.app.state.sessions() as session:
-        if request.method in UNSAFE_METHODS:
+        if request.method in UNSAFE_METHODS and not getattr(request.state, LATE_TURN_STATE, False):
             begin_writing(session)  # writers queue for SQLite's write lock from the start
         try:
             yield session

@@ -20,7 +20,7 @@ from sqlalchemy import ForeignKey, Integer, String, Text, UniqueConstraint, sele
 from sqlalchemy.exc import IntegrityError
 from sqlalchemy.orm import Mapped, Session, mapped_column
 
-from server.db import Base
+from server.db import Base, take_writers_turn
 from server.deps import DbSession
 from server.errors import Conflict, FlarebookError, Invalid
 from server.types import UTCDateTime, utcnow
@@ -88,6 +88,7 @@ class Once:
             return self._replay(row)
         claim = IdempotencyKey(person_id=self.person_id, key=self.key, request_sha256=self.request_sha256,
                                status_code=0, response_body="")
+        take_writers_turn(self.db)  # before the savepoint: on SQLite a SAVEPOINT would begin a transaction
         try:
             with self.db.begin_nested():
                 self.db.add(claim)

@@ -11,23 +11,39 @@ on beside them. The body is read before queueing, so a slow upload does not hold
 Correctness does not rest on this queue (writers still begin with BEGIN IMMEDIATE on SQLite and take
 the advisory lock on PostgreSQL, and several app servers each have their own queue); it keeps them
 from waiting in threads.
+
+Some routes take the writer's turn late (`late_turn`, logging an attempt): their service reads,
+checks and scores outside the turn and takes it only for the insert, the audit entry and the commit
+(`server.db.take_writers_turn`), re-checking under it what the turn protects. A few of them at a
+time (LATE_AT_ONCE) go on to the thread pool, marked with `request.state.late_writer_turn` so that
+`get_db` does not begin them as writers; a few, so that threads waiting for the turn can never hold
+every worker thread while the holder waits for one to commit.
 """
 import asyncio
+import re
 import weakref
 
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 WRITING_METHODS = {"POST", "PUT", "PATCH", "DELETE"}
+# Late-turn requests let into the thread pool at once: enough to overlap one's commit with the next
+# ones' reading and scoring, far fewer than the pool's 40 threads.
+LATE_AT_ONCE = 4
+LATE_TURN_STATE = "late_writer_turn"
 
 
 class WriterQueue:
-    def __init__(self, app: ASGIApp, skip_paths: frozenset[str] = frozenset()):
+    def __init__(self, app: ASGIApp, skip_paths: frozenset[str] = frozenset(),
+                 late_turn: tuple[str, ...] = ()):
         self.app = app
+        # (method path) patterns of sync routes whose service takes the writer's turn itself, late.
+        self.late_turn = [re.compile(pattern) for pattern in late_turn]
         # Routes that check a password first (Argon2 takes a while on purpose) and write little: queued,
         # every guess would hold up everyone's saves; their short write still takes the database's turn.
         self.skip_paths = skip_paths
         # One queue per event loop: a server has one; test clients may each run their own.
         self.turns: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+        self.late_gates: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
     async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
         if scope["type"] != "http" or scope["method"] not in WRITING_METHODS or scope["path"] in self.skip_paths:
@@ -46,9 +62,17 @@ class WriterQueue:
             return await receive()  # after the body: only a disconnect can come
 
         loop = asyncio.get_running_loop()
-        turn = self.turns.setdefault(loop, asyncio.Lock())
-        async with turn:
+        if self._takes_turn_late(scope):
+            scope.setdefault("state", {})[LATE_TURN_STATE] = True
+            gate = self.late_gates.setdefault(loop, asyncio.Semaphore(LATE_AT_ONCE))
+        else:
+            gate = self.turns.setdefault(loop, asyncio.Lock())
+        async with gate:
             await self.app(scope, replay, send)
+
+    def _takes_turn_late(self, scope: Scope) -> bool:
+        request_line = f"{scope['method']} {scope['path']}"
+        return any(pattern.fullmatch(request_line) for pattern in self.late_turn)
 
 
 async def _whole_body(receive: Receive) -> bytes | None:

@@ -26,6 +26,9 @@ from server.logbook.schemas import (
 from server.people.deps import ApiUser, IdempotentCreate
 
 router = APIRouter(tags=["logbook"])
+# Requests (method and path under /api/v1) that take the writer's turn late, in their service: logging an
+# attempt reads, checks and scores before it (server/write_queue.py). Their routes are plain `def`.
+LATE_TURN_ROUTES = (r"POST /api/v1/sorties/\d+/attempts",)
 
 
 def attempt_read(attempt: Attempt) -> AttemptRead:
@@ -130,7 +133,7 @@ def amend_sortie(sortie_id: int, data: AmendRequest, db: DbSession, person: ApiU
 @router.post("/sorties/{sortie_id}/attempts", response_model=AttemptRead, status_code=201)
 def add_attempt(sortie_id: int, data: AttemptFields, db: DbSession, person: ApiUser, once: IdempotentCreate):
     """Log an attempt; with an Idempotency-Key header a resent request logs it only once."""
-    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person)
+    sortie = logbook.get_sortie(db, sortie_id=sortie_id, viewer=person, options=logbook.FOR_LOGGING)
     return once.run(lambda: attempt_read(logbook.add_attempt(db, actor=person, sortie=sortie, data=data)),
                     status_code=201)
 

@@ -4,10 +4,11 @@ from datetime import UTC, date, datetime, time, timedelta
 
 from pydantic import ValidationError
 from sqlalchemy import func, select
-from sqlalchemy.orm import Session
+from sqlalchemy.orm import Session, lazyload
 
 from server.compute.atmosphere import inhg_to_hpa
 from server.config import settings_of
+from server.db import take_writers_turn
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.fleet.models import Aircraft, Site
 from server.logbook import access, derive
@@ -43,9 +44,14 @@ ATTEMPT_RECORD_FIELDS = ATTEMPT_FIELDS + (
 
 # ---- reading -------------------------------------------------------------------------------
 
-def get_sortie(session: Session, *, sortie_id: int, viewer: Person) -> Sortie:
+# Logging an attempt needs the sortie's own columns and its aircraft's type, not its people or site:
+# loading those (two more queries for their roles) was a fifth of the request's database work.
+FOR_LOGGING = (lazyload(Sortie.pilot), lazyload(Sortie.instructor), lazyload(Sortie.site))
+
+
+def get_sortie(session: Session, *, sortie_id: int, viewer: Person, options=()) -> Sortie:
     """A sortie the viewer may see; 404 for one they may not, so its existence is not revealed."""
-    sortie = session.get(Sortie, sortie_id)
+    sortie = session.get(Sortie, sortie_id, options=options)
     if sortie is None or not may_view(session, viewer=viewer, sortie=sortie):
         raise NotFound("No such sortie.")
     return sortie
@@ -282,21 +288,46 @@ def discard_sortie(session: Session, *, actor: Person, sortie: Sortie) -> None:
 
 
 def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: AttemptFields) -> Attempt:
-    """Log one practice autorotation and score it at once."""
+    """Log one practice autorotation and score it at once.
+
+    Checked and scored first, outside the writer's turn; the turn is held only for the insert, the
+    audit entry and the commit (server/write_queue.py, LATE_TURN_ROUTES), and under it the sortie is
+    checked again: still a draft, unchanged since it was read (else scored again), the next sequence.
+    """
     _require_editor(session, actor=actor, sortie=sortie)
     _require_draft(sortie)
+    standard = standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver)
+    attempt = Attempt(pilot_id=sortie.pilot_id, flown_on=people.local_date(session, sortie.flown_at),
+                      **data.model_dump())
+    derive.score(attempt, sortie, standard)
+    if _hold_draft(session, sortie):
+        attempt.flown_on = people.local_date(session, sortie.flown_at)
+        derive.score(attempt, sortie, standard)
     # One SQL max, not a load of every attempt of the sortie: logging stays quick as a sortie grows.
     last = session.scalar(select(func.max(Attempt.sequence)).where(Attempt.sortie_id == sortie.id))
-    sequence = (last or 0) + 1
-    standard = standard_for(session, pilot_id=sortie.pilot_id, maneuver=data.maneuver)
-    attempt = Attempt(sortie=sortie, sequence=sequence, pilot_id=sortie.pilot_id,
-                      flown_on=people.local_date(session, sortie.flown_at), **data.model_dump())
-    derive.score(attempt, sortie, standard)
+    attempt.sequence = (last or 0) + 1
+    attempt.sortie = sortie
     session.add(attempt)
     session.flush()
     audit.append(session, actor_id=actor.id, action="create", entity="attempt", entity_id=attempt.id,
                  after=attempt_record(attempt))
     return attempt
+
+
+def _hold_draft(session: Session, sortie: Sortie) -> bool:
+    """Take the writer's turn and lock the sortie's row; refuse it if no longer a draft.
+
+    True when the sortie was changed since it was read (it is read again): what was derived from it
+    must be derived again.
+    """
+    take_writers_turn(session)
+    now = session.execute(select(Sortie.state, Sortie.updated_at).where(Sortie.id == sortie.id)
+                          .with_for_update()).one()  # PostgreSQL: signing waits for this commit
+    changed = (now.state, now.updated_at) != (sortie.state, sortie.updated_at)
+    if changed:
+        session.refresh(sortie)
+        _require_draft(sortie)
+    return changed
 
 
 def update_attempt(session: Session, *, actor: Person, attempt: Attempt, data: AttemptFields) -> Attempt:
@@ -375,7 +406,8 @@ def record_instructor_signature(session: Session, *, actor: Person, sortie: Sort
 
 def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning: str) -> Signature:
     """Seal a draft with a signature that means one of MEANINGS; callers have checked who signs and how."""
-    _require_draft(sortie)
+    _hold_draft(session, sortie)  # an attempt being logged meanwhile is committed first, or refused after
+    session.expire(sortie, ["attempts"])  # so the signed content holds every attempt committed before
     if not sortie.attempts:
         raise Invalid("Log at least one attempt before signing the sortie.")
     sortie.state = "signed"  # written with the signature in one flush

@@ -298,12 +298,11 @@ def issue_token(session: Session, *, person: Person, label: str = "", days: int 
 
 def person_for_token(session: Session, token: str) -> Person | None:
     """The active person a live (not revoked, not expired) token belongs to."""
-    row = session.scalar(select(ApiToken).where(ApiToken.token_sha256 == sha256_hex(token),
-                                                ApiToken.revoked_at.is_(None)))
-    if row is None or (row.expires_at is not None and row.expires_at <= utcnow()):
-        return None
-    person = session.get(Person, row.person_id)
-    return person if person is not None and person.active else None
+    # One query: every API request asks this first.
+    return session.scalar(
+        select(Person).join(ApiToken, ApiToken.person_id == Person.id)
+        .where(ApiToken.token_sha256 == sha256_hex(token), ApiToken.revoked_at.is_(None),
+               (ApiToken.expires_at.is_(None)) | (ApiToken.expires_at > utcnow()), Person.active.is_(True)))
 
 
 def list_tokens(session: Session, *, person: Person) -> list[ApiToken]:
@@ -334,19 +333,26 @@ def revoke_all_tokens(session: Session, *, person_id: int, actor_id: int | None 
     return count
 
 
+NEW_SCHOOL_TIMEZONE = "UTC"  # a new database starts in UTC
+
+
 def school(session: Session) -> School:
-    """The school row, made on first use (a new database starts in UTC)."""
+    """The school row, made on first use."""
     row = session.get(School, 1)
     if row is None:
-        row = School(id=1, name="Flight school", timezone="UTC")
+        row = School(id=1, name="Flight school", timezone=NEW_SCHOOL_TIMEZONE)
         session.add(row)
         session.flush()
     return row
 
 
 def school_zone(session: Session) -> ZoneInfo:
-    """The school's time zone: it decides which local date a flight counts on."""
-    return ZoneInfo(school(session).timezone)
+    """The school's time zone: it decides which local date a flight counts on.
+
+    Read only: a request that only needs the date (logging an attempt) writes no school row.
+    """
+    timezone = session.scalar(select(School.timezone).where(School.id == 1))
+    return ZoneInfo(timezone or NEW_SCHOOL_TIMEZONE)
 
 
 def school_today(session: Session) -> date:

@@ -1,4 +1,12 @@
-"""The audit chain: every change and access decision, each row hashed with the one before."""
+"""The audit chain: every change and access decision, each row hashed with the one before.
+
+An entry is made in two steps. `append` fixes its content (actor, action, before, after, time) in the
+caller's transaction; its link in the chain (sequence number, previous hash, own hash) is filled in when
+the session flushes it, normally at the commit, after the chain's turn is taken: on SQLite the writer's
+turn (BEGIN IMMEDIATE), on PostgreSQL a transaction-scoped advisory lock. So the chain is serial only
+for its last read of the head, the INSERT and the COMMIT, and several processes on one PostgreSQL keep
+one chain with no gap and no fork.
+"""
 import hashlib
 import json
 from collections.abc import Iterable
@@ -6,14 +14,16 @@ from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
 
-from sqlalchemy import select, text
+from sqlalchemy import event, select, text
 from sqlalchemy.orm import Session
+
+from server.db import take_writers_turn
 
 from server.records.models import AuditEvent
 from server.types import utcnow
 
 GENESIS = "0" * 64
-# Any fixed number: the PostgreSQL advisory lock that queues appends (released at commit).
+# Any fixed number: the PostgreSQL advisory lock that queues chain links (released at commit).
 APPEND_LOCK_KEY = 0x464C4152
 
 
@@ -41,33 +51,50 @@ def event_hash(*, prev_hash: str, seq: int, at: datetime, actor_id: int | None, 
 
 def append(session: Session, *, actor_id: int | None, action: str, entity: str,
            entity_id: str | int | None = None, before=None, after=None, reason: str | None = None) -> AuditEvent:
-    """Add one audit row in the caller's transaction, chained to the last one."""
-    _queue_for_append(session)
-    last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
-    seq, prev_hash = (last.seq + 1, last.hash) if last else (1, GENESIS)
-    at = utcnow()
+    """Add one audit entry in the caller's transaction; it is chained to the last one when flushed."""
     entity_key = None if entity_id is None else str(entity_id)
-    before = json.loads(canonical_json(before)) if before is not None else None
-    after = json.loads(canonical_json(after)) if after is not None else None
     row = AuditEvent(
-        seq=seq, at=at, actor_id=actor_id, action=action, entity=entity, entity_id=entity_key,
-        before=before, after=after, reason=reason, prev_hash=prev_hash,
-        hash=event_hash(prev_hash=prev_hash, seq=seq, at=at, actor_id=actor_id, action=action,
-                        entity=entity, entity_id=entity_key, before=before, after=after, reason=reason),
+        at=utcnow(), actor_id=actor_id, action=action, entity=entity, entity_id=entity_key, reason=reason,
+        before=json.loads(canonical_json(before)) if before is not None else None,
+        after=json.loads(canonical_json(after)) if after is not None else None,
     )
     session.add(row)
-    session.flush()
+    session.info.setdefault(UNLINKED, []).append(row)
     return row
 
 
-def _queue_for_append(session: Session) -> None:
-    """Make appends take turns, so two transactions never chain to the same last row.
+UNLINKED = "flarebook_audit_unlinked"  # session.info: entries appended and not yet flushed, in order
 
-    SQLite: writing transactions begin with BEGIN IMMEDIATE (server/db.py), which already holds the one
-    write lock. PostgreSQL: a transaction-scoped advisory lock, held until commit or rollback.
+
+@event.listens_for(Session, "before_flush")
+def _link_appended(session: Session, _flush_context, _instances) -> None:
+    """Give the entries about to be written their place in the chain, under the chain's turn."""
+    appended = session.info.pop(UNLINKED, None)
+    rows = [row for row in appended or () if row in session.new]  # a rolled-back savepoint drops its rows
+    if not rows:
+        return
+    _take_chain_turn(session)
+    seq, prev_hash = _head(session)
+    for row in rows:
+        seq += 1
+        row.seq, row.prev_hash = seq, prev_hash
+        row.hash = prev_hash = row_hash(row)
+
+
+def _take_chain_turn(session: Session) -> None:
+    """Make chain links take turns, so two transactions never chain to the same last row.
+
+    SQLite: the writer's turn (BEGIN IMMEDIATE, already held when the transaction began as a writer).
+    PostgreSQL: a transaction-scoped advisory lock, held until commit or rollback.
     """
+    take_writers_turn(session)
     if session.get_bind().dialect.name == "postgresql":
         session.execute(text("SELECT pg_advisory_xact_lock(:key)"), {"key": APPEND_LOCK_KEY})
+
+
+def _head(session: Session) -> tuple[int, str]:
+    last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
+    return (last.seq, last.hash) if last else (0, GENESIS)
 
 
 def row_hash(row: AuditEvent) -> str:
@@ -124,8 +151,8 @@ class ChainReport:
 
 
 def current_head(session: Session) -> Head:
-    last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
-    return Head(seq=last.seq, hash=last.hash) if last else Head(seq=0, hash=GENESIS)
+    seq, hash_ = _head(session)
+    return Head(seq=seq, hash=hash_)
 
 
 def check_rows(rows: Iterable[AuditEvent], kept_head: Head | None = None) -> ChainReport:

@@ -133,10 +133,10 @@ def parse_wrk(output: str) -> dict:
         value, unit = re.fullmatch(r"([\d.]+)(us|ms|s|m)", text).groups()
         return float(value) * {"us": 0.001, "ms": 1.0, "s": 1000.0, "m": 60_000.0}[unit]
 
-    block = re.search(r"Latency Distribution\n((?:\s+[\d.]+%\s+\S+\n)+)", output)
-    if block is None:
-        raise ValueError("wrk's report has no latency distribution (was --latency given?)")
-    percentiles = dict(re.findall(r"([\d.]+)%\s+(\S+)", block.group(1)))
+    block = re.search(r"Latency Distribution\n((?:[ \t]+[\d.]+%[ \t]+\S+[ \t]*\n)+)", output)
+    percentiles = dict(re.findall(r"([\d.]+)%[ \t]+(\S+)", block.group(1))) if block else {}
+    if not {"50", "99"} <= percentiles.keys():
+        raise ValueError(f"wrk's report has no latency distribution (was --latency given?):\n{output}")
     errors = re.search(r"Socket errors: connect (\d+), read (\d+), write (\d+), timeout (\d+)", output)
     return {
         "rps": float(re.search(r"Requests/sec:\s+([\d.]+)", output).group(1)),

@@ -14,7 +14,8 @@ from server.records import audit
 @pytest.fixture
 def entry(app):
     with transaction(app.state.sessions) as session:
-        return audit.append(session, actor_id=None, action="create", entity="test", entity_id=1, after={"a": 1}).seq
+        row = audit.append(session, actor_id=None, action="create", entity="test", entity_id=1, after={"a": 1})
+    return row.seq  # its place in the chain is given when it is written, at the commit
 
 
 @pytest.mark.parametrize("statement", [
