@@ -97,3 +97,10 @@ def test_an_idle_machine_prints_figures_unmarked(printed):
     machine.check(False, machine.Machine(load=(0.4, 0.3, 0.2), cores=2))
     print("bare  500 req/s")
     assert printed().splitlines()[1] == "bare  500 req/s"
+
+
+def test_distribution_lines_with_trailing_spaces_are_read():
+    """wrk pads some lines; the smoke run on a busy machine met a report the first fix could not read."""
+    padded = WRK_REPORT.replace("401.27ms\n", "401.27ms  \n").replace("596.02ms\n  771", "596.02ms \n  771")
+    figures = parse_wrk(padded)
+    assert (figures["p50_ms"], figures["p99_ms"]) == (pytest.approx(401.27), pytest.approx(596.02))
