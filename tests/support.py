@@ -1,9 +1,12 @@
 """Builders for the invented test school; every name and figure is invented for the tests."""
+import asyncio
+from concurrent.futures import ThreadPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass
 from html.parser import HTMLParser
 from datetime import UTC, date, datetime
 
+import httpx
 from sqlalchemy import text
 from sqlalchemy.orm import Session
 
@@ -169,3 +172,18 @@ def cell_texts(table) -> list[list[str]]:
     """The text of each body cell of a parsed table, row by row, as read aloud."""
     return [[read_text(cell) for cell in row.find_all(["th", "td"], recursive=False)]
             for row in table.find("tbody").find_all("tr", recursive=False)]
+
+
+def post_at_once(app, token: str, posts: list[tuple[str, dict]]) -> list[httpx.Response]:
+    """Send (path, JSON body) posts at once through the app on one event loop, as one server gets them.
+
+    The loop runs in a thread of its own: the browser tests' Playwright keeps one running in this one.
+    """
+    async def send_all():
+        transport = httpx.ASGITransport(app=app)
+        async with httpx.AsyncClient(transport=transport, base_url="http://testserver",
+                                     headers={"Authorization": f"Bearer {token}"}) as client:
+            return await asyncio.gather(*[client.post(path, json=body) for path, body in posts])
+
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        return pool.submit(asyncio.run, send_all()).result()

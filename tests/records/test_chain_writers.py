@@ -7,12 +7,9 @@ servers behind one database do. What "one chain" means is the hash chain's own r
 the hash of the one before, sequence numbers 1, 2, 3 ... with none missing, as in RFC 6962's append-only
 log); `audit.verify` checks it and the counts check that nothing was lost or written twice.
 """
-import asyncio
 import multiprocessing
 import threading
-from concurrent.futures import ThreadPoolExecutor
 
-import httpx
 from sqlalchemy import func, select
 
 from server.db import make_engine, make_session_factory, transaction
@@ -21,7 +18,7 @@ from server.logbook.service import content_hash
 from server.people import service as people
 from server.records import audit
 from server.records.models import AuditEvent
-from tests.support import PASSWORD, make_sortie
+from tests.support import PASSWORD, make_sortie, post_at_once
 
 PER_WRITER = 10
 
@@ -103,16 +100,9 @@ def test_an_attempt_logged_while_the_sortie_is_signed_is_in_the_signed_record_or
         session.commit()
     body = {"maneuver": "turn_180", "termination": "to_hover", "descent_kias": 63}
 
-    async def race():
-        transport = httpx.ASGITransport(app=app)
-        async with httpx.AsyncClient(transport=transport, base_url="http://testserver",
-                                     headers={"Authorization": f"Bearer {token}"}) as client:
-            posts = [client.post(f"/api/v1/sorties/{sortie.id}/attempts", json=body) for _ in range(12)]
-            sign = client.post(f"/api/v1/sorties/{sortie.id}/sign", json={"password": PASSWORD})
-            return await asyncio.gather(*posts[:6], sign, *posts[6:])
-
-    with ThreadPoolExecutor(max_workers=1) as pool:  # an event loop of its own (see test_concurrency.py)
-        answers = pool.submit(asyncio.run, race()).result()
+    attempt = (f"/api/v1/sorties/{sortie.id}/attempts", body)
+    sign = (f"/api/v1/sorties/{sortie.id}/sign", {"password": PASSWORD})
+    answers = post_at_once(app, token, [attempt] * 6 + [sign] + [attempt] * 6)
     signed = answers.pop(6)
     assert signed.status_code == 200
     assert {a.status_code for a in answers} <= {201, 409}

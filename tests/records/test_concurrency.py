@@ -39,31 +39,16 @@ def test_fifty_concurrent_appends_chain_in_order(app, settings):
 def test_fifty_attempts_logged_at_once_through_the_app_number_and_chain_in_order(app, world, settings):
     """Through the app on one event loop, as one server runs: every answer 201, attempt numbers 1 to
     50 without gaps or repeats, and the chain verifies."""
-    import asyncio
-    from concurrent.futures import ThreadPoolExecutor
-
-    import httpx
-
     from server.logbook.models import Attempt
     from server.people import service as people
-    from tests.support import make_sortie
+    from tests.support import make_sortie, post_at_once
 
     with app.state.sessions() as session:
         sortie = make_sortie(session, world)
         token = people.issue_token(session, person=session.merge(world.instructor), label="tablet")
         session.commit()
     body = {"maneuver": "turn_180", "termination": "to_hover", "descent_kias": 63}
-
-    async def log_fifty():
-        transport = httpx.ASGITransport(app=app)
-        async with httpx.AsyncClient(transport=transport, base_url="http://testserver",
-                                     headers={"Authorization": f"Bearer {token}"}) as client:
-            return await asyncio.gather(*[client.post(f"/api/v1/sorties/{sortie.id}/attempts", json=body)
-                                          for _ in range(50)])
-
-    # A thread of its own: the browser tests' Playwright keeps an event loop running in this one.
-    with ThreadPoolExecutor(max_workers=1) as pool:
-        answers = pool.submit(asyncio.run, log_fifty()).result()
+    answers = post_at_once(app, token, [(f"/api/v1/sorties/{sortie.id}/attempts", body)] * 50)
     assert [a.status_code for a in answers] == [201] * 50
     engine = make_engine(settings.database_url)
     with make_session_factory(engine)() as session:
