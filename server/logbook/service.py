@@ -3,7 +3,7 @@ import hashlib
 from datetime import UTC, date, datetime, time, timedelta
 
 from pydantic import ValidationError
-from sqlalchemy import func, select
+from sqlalchemy import bindparam, func, select
 from sqlalchemy.orm import Session, lazyload
 
 from server.compute.atmosphere import inhg_to_hpa
@@ -303,15 +303,20 @@ def add_attempt(session: Session, *, actor: Person, sortie: Sortie, data: Attemp
     if _hold_draft(session, sortie):
         attempt.flown_on = people.local_date(session, sortie.flown_at)
         derive.score(attempt, sortie, standard)
-    # One SQL max, not a load of every attempt of the sortie: logging stays quick as a sortie grows.
-    last = session.scalar(select(func.max(Attempt.sequence)).where(Attempt.sortie_id == sortie.id))
-    attempt.sequence = (last or 0) + 1
+    attempt.sequence = (session.scalar(_LAST_SEQUENCE, {"sortie_id": sortie.id}) or 0) + 1
     attempt.sortie = sortie
     session.add(attempt)
     session.flush()
     audit.append(session, actor_id=actor.id, action="create", entity="attempt", entity_id=attempt.id,
                  after=attempt_record(attempt))
     return attempt
+
+
+# Built once (the attempt route runs them on every request). One SQL max, not a load of every attempt
+# of the sortie: logging stays quick as a sortie grows. FOR UPDATE: on PostgreSQL a signature, or
+# another attempt of the sortie, waits for this commit (SQLite's writer's turn already serialises).
+_LAST_SEQUENCE = select(func.max(Attempt.sequence)).where(Attempt.sortie_id == bindparam("sortie_id"))
+_DRAFT_ROW = select(Sortie.state, Sortie.updated_at).where(Sortie.id == bindparam("sortie_id")).with_for_update()
 
 
 def _hold_draft(session: Session, sortie: Sortie) -> bool:
@@ -321,8 +326,7 @@ def _hold_draft(session: Session, sortie: Sortie) -> bool:
     must be derived again.
     """
     take_writers_turn(session)
-    now = session.execute(select(Sortie.state, Sortie.updated_at).where(Sortie.id == sortie.id)
-                          .with_for_update()).one()  # PostgreSQL: signing waits for this commit
+    now = session.execute(_DRAFT_ROW, {"sortie_id": sortie.id}).one()
     changed = (now.state, now.updated_at) != (sortie.state, sortie.updated_at)
     if changed:
         session.refresh(sortie)

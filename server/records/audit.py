@@ -93,8 +93,11 @@ def _take_chain_turn(session: Session) -> None:
 
 
 def _head(session: Session) -> tuple[int, str]:
-    last = session.execute(select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)).first()
+    last = session.execute(_HEAD).first()
     return (last.seq, last.hash) if last else (0, GENESIS)
+
+
+_HEAD = select(AuditEvent.seq, AuditEvent.hash).order_by(AuditEvent.seq.desc()).limit(1)  # built once
 
 
 def row_hash(row: AuditEvent) -> str:
