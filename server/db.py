@@ -98,6 +98,14 @@ def begin_writing(session: Session) -> None:
     session.connection(execution_options=WRITES)
 
 
+LATE_TURN = "flarebook_late_turn"  # session.info: this transaction takes the writer's turn late
+
+
+def mark_late_turn(session: Session) -> None:
+    """This session's writes take the writer's turn only when written (a late-turn request)."""
+    session.info[LATE_TURN] = True
+
+
 def take_writers_turn(session: Session) -> None:
     """Hold the writer's turn from here to the commit; nothing when the session already holds it.
 

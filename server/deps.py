@@ -9,7 +9,7 @@ from typing import Annotated
 from fastapi import Depends, Request
 from sqlalchemy.orm import Session
 
-from server.db import begin_writing
+from server.db import begin_writing, mark_late_turn
 from server.errors import FlarebookError, Forbidden
 from server.write_queue import LATE_TURN_STATE
 
@@ -31,7 +31,9 @@ def cookie_name(request: Request) -> str:
 def get_db(request: Request) -> Iterator[Session]:
     """One transaction per request, committed before the answer is sent: the one place that commits."""
     with request.app.state.sessions() as session:
-        if request.method in UNSAFE_METHODS and not getattr(request.state, LATE_TURN_STATE, False):
+        if getattr(request.state, LATE_TURN_STATE, False):
+            mark_late_turn(session)  # its service takes the turn just before its insert
+        elif request.method in UNSAFE_METHODS:
             begin_writing(session)  # writers queue for SQLite's write lock from the start
         try:
             yield session

@@ -2,7 +2,8 @@
 
 An entry is made in two steps. `append` fixes its content (actor, action, before, after, time) in the
 caller's transaction; its link in the chain (sequence number, previous hash, own hash) is filled in when
-the session flushes it, normally at the commit, after the chain's turn is taken: on SQLite the writer's
+the session flushes it, after the chain's turn is taken (at once, except in a late-turn transaction,
+server.db.mark_late_turn, where that is at the commit): on SQLite the writer's
 turn (BEGIN IMMEDIATE), on PostgreSQL a transaction-scoped advisory lock. So the chain is serial only
 for its last read of the head, the INSERT and the COMMIT, and several processes on one PostgreSQL keep
 one chain with no gap and no fork.
@@ -17,7 +18,7 @@ from pathlib import Path
 from sqlalchemy import event, select, text
 from sqlalchemy.orm import Session
 
-from server.db import take_writers_turn
+from server.db import LATE_TURN, take_writers_turn
 
 from server.records.models import AuditEvent
 from server.types import utcnow
@@ -60,6 +61,10 @@ def append(session: Session, *, actor_id: int | None, action: str, entity: str,
     )
     session.add(row)
     session.info.setdefault(UNLINKED, []).append(row)
+    if not session.info.get(LATE_TURN):
+        # A transaction that holds the turn anyway links now, where it appends (in its own thread: an
+        # async route's later autoflush on the event loop must not wait for the chain's lock there).
+        session.flush()
     return row
 
 

@@ -12,7 +12,7 @@ import threading
 
 from sqlalchemy import func, select
 
-from server.db import make_engine, make_session_factory, transaction
+from server.db import make_engine, make_session_factory, mark_late_turn, transaction
 from server.logbook.models import Attempt, Signature
 from server.logbook.service import content_hash
 from server.people import service as people
@@ -56,6 +56,7 @@ def test_writers_beginning_early_and_taking_the_turn_late_keep_one_chain(app, se
     def late(n: int):  # as logging an attempt: reads first, the chain's turn only at the commit
         for i in range(PER_WRITER):
             with app.state.sessions() as session:
+                mark_late_turn(session)
                 session.scalar(select(func.count()).select_from(AuditEvent))
                 audit.append(session, actor_id=None, action="test", entity="late", entity_id=n, after={"i": i})
                 session.commit()
