@@ -87,8 +87,10 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     _standards(session)
     program = _program(session)
     for key, (instructor, first_week, _last, _growth) in STUDENTS.items():
+        # Each student's stage checks are signed by the other line instructor (the chief pilot may too).
+        checker = "tomas" if instructor == "ines" else "ines"
         session.add(Enrolment(program_id=program.id, student_id=who[key].id, instructor_id=who[instructor].id,
-                              started_on=today - timedelta(weeks=first_week)))
+                              check_instructor_id=who[checker].id, started_on=today - timedelta(weeks=first_week)))
     _rules(session, kestrel.id)
     session.flush()
 
