@@ -4,6 +4,7 @@ import os
 import re
 import uuid
 
+import argon2
 import pytest
 from fastapi.testclient import TestClient
 from sqlalchemy import create_engine, text
@@ -13,9 +14,29 @@ from server.app import create_app
 from server.config import Settings
 from server.migrate import upgrade
 from server.models import Base
+from server.people import security
 from tests.support import PASSWORD, World, audit_table_writable, build_world
 
 POSTGRES_URL = os.environ.get("FLAREBOOK_TEST_DATABASE_URL")
+
+
+@pytest.fixture(scope="session", autouse=True)
+def cheap_password_hashes():
+    """argon2-cffi's cheapest profile for the test accounts: every test builds a school of five people
+    and signs some in, and at production cost hashing took most of the suite's time. The test of the
+    stored parameters asks for `production_password_hashes`; commands run as subprocesses keep them."""
+    production = security._hasher
+    security._hasher = argon2.PasswordHasher.from_parameters(argon2.profiles.CHEAPEST)
+    yield
+    security._hasher = production
+
+
+@pytest.fixture
+def production_password_hashes():
+    cheap = security._hasher
+    security._hasher = security.PRODUCTION_HASHER
+    yield
+    security._hasher = cheap
 
 
 @pytest.fixture(scope="session")
