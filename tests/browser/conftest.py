@@ -3,6 +3,7 @@ Playwright, and a 1024x768 touch tablet as every test's browser context."""
 import os
 import shutil
 import socket
+import tempfile
 import threading
 import time
 from pathlib import Path
@@ -111,8 +112,11 @@ def screenshot(page, name: str) -> Path:
 
     Kept in the repository (README: "Screenshots"); each run overwrites the file of the same name.
     """
-    SCREENSHOTS.mkdir(parents=True, exist_ok=True)
-    path = SCREENSHOTS / f"{name}.png"
+    # The PostgreSQL pass runs beside the SQLite one (tests/run.sh): only one of them keeps the pages.
+    kept = not os.environ.get("FLAREBOOK_TEST_DATABASE_URL")
+    folder = SCREENSHOTS if kept else Path(tempfile.gettempdir()) / "flarebook-screenshots-postgresql"
+    folder.mkdir(parents=True, exist_ok=True)
+    path = folder / f"{name}.png"
     page.screenshot(path=str(path), full_page=True, animations="disabled")
     return path
 
