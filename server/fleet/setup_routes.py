@@ -87,13 +87,13 @@ async def aircraft_update(aircraft_id: int, request: Request, db: DbSession, per
 @router.post("/setup/aircraft/{aircraft_id}/deactivate", name="aircraft_deactivate")
 def aircraft_deactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
     """New sorties no longer offer it; every record flown in it stays."""
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=False, actor=person)
+    fleet.set_active(db, row=fleet.get_aircraft(db, aircraft_id), active=False, actor=person)
     return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
 
 @router.post("/setup/aircraft/{aircraft_id}/reactivate", name="aircraft_reactivate")
 def aircraft_reactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=True, actor=person)
+    fleet.set_active(db, row=fleet.get_aircraft(db, aircraft_id), active=True, actor=person)
     return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
 
 
@@ -181,11 +181,11 @@ async def site_update(site_id: int, request: Request, db: DbSession, person: Set
 @router.post("/setup/sites/{site_id}/deactivate", name="site_deactivate")
 def site_deactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
     """New sorties no longer offer it; every record flown there stays."""
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=False, actor=person)
+    fleet.set_active(db, row=fleet.get_site(db, site_id), active=False, actor=person)
     return RedirectResponse(request.url_for("site_list"), status_code=303)
 
 
 @router.post("/setup/sites/{site_id}/reactivate", name="site_reactivate")
 def site_reactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=True, actor=person)
+    fleet.set_active(db, row=fleet.get_site(db, site_id), active=True, actor=person)
     return RedirectResponse(request.url_for("site_list"), status_code=303)
