@@ -15,6 +15,14 @@ from server.config import Settings
 from server.migrate import upgrade
 from server.models import Base
 from server.people import security
+from tests.browser.fixtures import (  # noqa: F401 (the real-browser fixtures, for page tests in every folder)
+    axe_path,
+    base_url,
+    browser_context_args,
+    browser_type_launch_args,
+    chromium_path,
+    live_server,
+)
 from tests.support import PASSWORD, World, audit_table_writable, build_world
 
 POSTGRES_URL = os.environ.get("FLAREBOOK_TEST_DATABASE_URL")

@@ -11,6 +11,8 @@ from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate, TypeUpd
 from server.people.models import Person
 from server.records import audit
 
+AUDIT_ENTITY = {Aircraft: "aircraft", Site: "site"}  # what the audit chain calls each kind of row
+
 
 def list_types(session: Session) -> list[HelicopterType]:
     return list(session.scalars(select(HelicopterType).order_by(HelicopterType.designation)))
@@ -157,16 +159,6 @@ def update_aircraft(session: Session, *, row: Aircraft, data: AircraftCreate, ac
     return row
 
 
-def set_aircraft_active(session: Session, *, row: Aircraft, active: bool, actor: Person) -> Aircraft:
-    """Take an aircraft out of use (or back): new sorties no longer offer it; its records stay."""
-    if row.active != active:
-        row.active = active
-        session.flush()
-        audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
-                     before={"active": not active}, after={"active": active})
-    return row
-
-
 def site_read(row: Site) -> dict:
     """A site's fields as the API's SiteCreate names them, plus its id and whether it is in use."""
     return {"id": row.id, "active": row.active,
@@ -186,11 +178,11 @@ def update_site(session: Session, *, row: Site, data: SiteCreate, actor: Person)
     return row
 
 
-def set_site_active(session: Session, *, row: Site, active: bool, actor: Person) -> Site:
-    """Take a site out of use (or back): new sorties no longer offer it; its records stay."""
+def set_active(session: Session, *, row: Aircraft | Site, active: bool, actor: Person) -> Aircraft | Site:
+    """Take an aircraft or a site out of use (or back): new sorties no longer offer it; its records stay."""
     if row.active != active:
         row.active = active
         session.flush()
-        audit.append(session, actor_id=actor.id, action="edit", entity="site", entity_id=row.id,
+        audit.append(session, actor_id=actor.id, action="edit", entity=AUDIT_ENTITY[type(row)], entity_id=row.id,
                      before={"active": not active}, after={"active": active})
     return row
