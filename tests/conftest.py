@@ -2,6 +2,7 @@
 set), the app, a small invented school, and a signed-in client per role."""
 import os
 import re
+import time
 import uuid
 
 import argon2
@@ -9,6 +10,7 @@ import pytest
 from fastapi.testclient import TestClient
 from sqlalchemy import create_engine, text
 from sqlalchemy.engine import make_url
+from sqlalchemy.exc import OperationalError
 
 from server.app import create_app
 from server.config import Settings
@@ -89,13 +91,23 @@ def empty_database(request):
     app.state.stranger_tally.take()  # strangers counted in one test are not written in the next
     engine = app.state.engine
     tables = list(reversed(Base.metadata.sorted_tables))
-    with engine.begin() as conn:
-        with audit_table_writable(conn):  # the audit table is append-only; tests start over anyway
-            if engine.dialect.name == "postgresql":
-                conn.execute(text("TRUNCATE " + ", ".join(f'"{t.name}"' for t in tables) + " RESTART IDENTITY CASCADE"))
-            else:
-                for table in tables:
-                    conn.execute(table.delete())
+    # A page test's live server may still be answering the browser's last request; on PostgreSQL the
+    # TRUNCATE can then lose a deadlock to it, and trying again once that request is done succeeds.
+    for attempt in range(5):
+        try:
+            with engine.begin() as conn:
+                with audit_table_writable(conn):  # the audit table is append-only; tests start over anyway
+                    if engine.dialect.name == "postgresql":
+                        conn.execute(text("TRUNCATE " + ", ".join(f'"{t.name}"' for t in tables)
+                                          + " RESTART IDENTITY CASCADE"))
+                    else:
+                        for table in tables:
+                            conn.execute(table.delete())
+            return
+        except OperationalError as error:
+            if "deadlock" not in str(error) or attempt == 4:
+                raise
+            time.sleep(0.2)
 
 
 @pytest.fixture
