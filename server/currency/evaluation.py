@@ -66,10 +66,17 @@ def base_from(query):
         Aircraft, Aircraft.id == Sortie.aircraft_id)
 
 
-def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids: Iterable[int] | None = None):
-    """The one statement: rows of (pilot, day, per-rule count, running count, window count, total)."""
+def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids: Iterable[int] | None = None,
+                        for_keeping: bool = False):
+    """The one statement: rows of (pilot, day, per-rule count, running count, window count, total).
+
+    for_keeping (the board's kept state, `server/currency/kept.py`): days after as_of are read too, and
+    every qualifying day inside the window on as_of is kept, not only those of the newest attempts.
+    """
     per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
-    days = base_from(select(Attempt.pilot_id, Attempt.flown_on, *per_day)).where(counting_attempts_filter(as_of))
+    counting = (and_(counted_sorties_clause(), Attempt.takeover == false()) if for_keeping
+                else counting_attempts_filter(as_of))
+    days = base_from(select(Attempt.pilot_id, Attempt.flown_on, *per_day)).where(counting)
     if pilot_ids is not None:
         days = days.where(Attempt.pilot_id.in_(list(pilot_ids)))
     days = days.group_by(Attempt.pilot_id, Attempt.flown_on).subquery("days")
@@ -80,10 +87,11 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
     for i, rule in enumerate(rules):
         n = days.c[f"n{i}"]
         start = window_start(as_of, window_days=rule.window_days, window_months=rule.window_months)
+        # Qualifying attempts on this day or later (by as_of): this day's rank counted from the newest.
+        by_as_of = case((days.c.flown_on <= as_of, n), else_=0) if for_keeping else n
         columns += [
             n,
-            # Qualifying attempts on this day or later: this day's rank counted from the newest.
-            func.sum(n).over(**by_day, rows=(0, None)).label(f"run{i}"),
+            func.sum(by_as_of).over(**by_day, rows=(0, None)).label(f"run{i}"),
             func.sum(case((days.c.flown_on >= start, n), else_=0)).over(**by_day, rows=(None, None))
             .label(f"win{i}"),
             func.sum(n).over(**by_day, rows=(None, None)).label(f"tot{i}"),
@@ -94,6 +102,12 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
         and_(ranked.c[f"n{i}"] > 0, ranked.c[f"run{i}"] - ranked.c[f"n{i}"] < rule.min_count)
         for i, rule in enumerate(rules)
     ]
+    if for_keeping:
+        among_newest += [
+            and_(ranked.c[f"n{i}"] > 0, ranked.c.flown_on >= window_start(
+                as_of, window_days=rule.window_days, window_months=rule.window_months))
+            for i, rule in enumerate(rules)
+        ]
     return select(ranked).where(or_(false(), *among_newest))
 
 
