@@ -111,6 +111,14 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
     return select(ranked).where(or_(false(), *among_newest))
 
 
+def sortie_days_statement(rules: Sequence[CurrencyRule], *, sortie_id: int):
+    """Rows of (day, per-rule count) of one sortie's attempts that can count (not taken over): what a new
+    signature adds to its pilot's kept state (`server/currency/kept.py`)."""
+    per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
+    return base_from(select(Attempt.flown_on, *per_day)).where(
+        Attempt.sortie_id == sortie_id, Attempt.takeover == false()).group_by(Attempt.flown_on)
+
+
 def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,
               pilot_ids: Iterable[int] | None = None) -> dict[tuple[int, int], Summary]:
     """Per (pilot_id, rule_id) with any qualifying attempt by as_of; a missing pair means never done."""

@@ -20,7 +20,7 @@ from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from datetime import date
 
-from sqlalchemy import delete, exists, insert, select, tuple_
+from sqlalchemy import String, delete, exists, insert, select, tuple_, type_coerce
 from sqlalchemy.orm import Session
 
 from server.compute.currency import KeptFacts, kept_facts
@@ -34,9 +34,27 @@ from server.people import hooks as people_hooks
 from server.people import service as people
 from server.people.models import Person, PersonRole
 
-FACT_COLUMNS = (KeptStanding.pilot_id, KeptStanding.rule_id, KeptStanding.counted_on, KeptStanding.newest_on,
-                KeptStanding.current_until, KeptStanding.still_counting, KeptStanding.window_count,
-                KeptStanding.counted_through)
+def _as_read(column):
+    """A date column as the driver hands it over (see `as_date`)."""
+    return type_coerce(column, String)
+
+
+# Today's board reads thousands of these rows: dates come as the driver gives them (SQLite's text read
+# by date.fromisoformat, which is C, rather than SQLAlchemy's pattern match), through the connection
+# rather than the ORM's row handling.
+FACT_COLUMNS = (KeptStanding.pilot_id, KeptStanding.rule_id, _as_read(KeptStanding.counted_on),
+                _as_read(KeptStanding.newest_on), _as_read(KeptStanding.current_until), KeptStanding.still_counting,
+                KeptStanding.window_count, _as_read(KeptStanding.counted_through))
+
+
+def as_date(value, _seen: dict = {}) -> date | None:  # noqa: B006 (a cache of the few distinct days read)
+    """A date read through `_as_read`: PostgreSQL's driver gives a date, SQLite's text an ISO string."""
+    if value is None or isinstance(value, date):
+        return value
+    day = _seen.get(value)
+    if day is None:
+        day = _seen[value] = date.fromisoformat(value)
+    return day
 
 
 def active_people(session: Session, person_ids: Sequence[int] | None = None) -> list[tuple[int, str, tuple[str, ...]]]:
@@ -135,11 +153,11 @@ def rebuild_if_unbuilt(session: Session) -> int:
 # ---- reading, for the board of today -------------------------------------------------------------
 
 def today_rows(session: Session, *, rule_ids: Sequence[int], person_ids: Sequence[int] | None = None):
-    """The kept facts (FACT_COLUMNS order) of these rules, of everyone or of the people named."""
+    """The kept facts (FACT_COLUMNS order, dates through `as_date`) of these rules, of everyone or of the people named."""
     query = select(*FACT_COLUMNS).where(KeptStanding.rule_id.in_(list(rule_ids)))
     if person_ids is not None:
         query = query.where(KeptStanding.pilot_id.in_(list(person_ids)))
-    return session.execute(query).all()
+    return session.connection().execute(query).all()
 
 
 def dates_of(session: Session, pairs: Sequence[tuple[int, int]]) -> dict[tuple[int, int], list[date]]:
@@ -156,8 +174,40 @@ def dates_of(session: Session, pairs: Sequence[tuple[int, int]]) -> dict[tuple[i
 
 # ---- the hooks: what moves the kept state ---------------------------------------------------------
 
+def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
+    """A first version signed adds its qualifying dates to its pilot's rows; nothing else changes.
+
+    Merging with the kept dates and pruning as of today gives what a recomputation would: a date pruned
+    on the day a row was written is older than the window and than min_count newer dates, and stays so.
+    False when the pilot's rows are not those of the rules that apply (then the caller recomputes)."""
+    rules = rules_service.list_rules(session)
+    rows = {row.rule_id: row for row in session.scalars(
+        select(KeptStanding).where(KeptStanding.pilot_id == sortie.pilot_id))}
+    if rows.keys() != {rule.id for _, rule in applicable_pairs(session, rules, [sortie.pilot_id])}:
+        return False
+    wanted = [rule for rule in rules if rule.id in rows]
+    if not wanted:
+        return True
+    added: dict[int, list[date]] = defaultdict(list)
+    for flown_on, *counts in session.execute(evaluation.sortie_days_statement(wanted, sortie_id=sortie.id)):
+        for rule, n in zip(wanted, counts, strict=True):
+            added[rule.id].extend([flown_on] * int(n or 0))
+    today = people.school_today(session)
+    for rule in wanted:
+        if not added[rule.id]:
+            continue
+        row = rows[rule.id]
+        facts = kept_facts([date.fromisoformat(q) for q in row.dates] + added[rule.id], as_of=today, **_window(rule))
+        for name, value in _row(row.pilot_id, rule.id, facts, today).items():
+            setattr(row, name, value)
+    return True
+
+
 def after_signing(session: Session, sorties: Sequence[Sortie]) -> None:
-    """Signed sorties: their pilots, and the pilot of any version an amendment replaces."""
+    """Signed sorties: a first version adds its dates; an amendment (or a batch) recomputes its pilots,
+    with the pilot of the version an amendment replaces."""
+    if len(sorties) == 1 and sorties[0].supersedes_id is None and add_signed_sortie(session, sorties[0]):
+        return
     pilots = {sortie.pilot_id for sortie in sorties}
     earlier = [sortie.supersedes_id for sortie in sorties if sortie.supersedes_id is not None]
     if earlier:
