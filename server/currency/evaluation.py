@@ -10,7 +10,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from datetime import date
 
-from sqlalchemy import and_, case, false, func, not_, or_, select, true
+from sqlalchemy import and_, bindparam, case, false, func, not_, or_, select, true
 from sqlalchemy.orm import Session
 
 from server.compute.currency import CurrencyStatus, status_from_summary, window_start
@@ -40,6 +40,10 @@ def _instructed():
 def counting_attempts_filter(as_of: date):
     """Attempts that can count at all: of a counted sortie (`counted_sorties_clause`), not taken over, flown by as_of."""
     return and_(counted_sorties_clause(), Attempt.takeover == false(), Attempt.flown_on <= as_of)
+
+
+RULE_CONDITION_FIELDS = ("maneuvers", "terminations", "type_ids", "with_instructor", "min_score",
+                         "require_satisfactory")
 
 
 def rule_condition(rule: CurrencyRule):
@@ -111,12 +115,22 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
     return select(ranked).where(or_(false(), *among_newest))
 
 
-def sortie_days_statement(rules: Sequence[CurrencyRule], *, sortie_id: int):
-    """Rows of (day, per-rule count) of one sortie's attempts that can count (not taken over): what a new
-    signature adds to its pilot's kept state (`server/currency/kept.py`)."""
-    per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
-    return base_from(select(Attempt.flown_on, *per_day)).where(
-        Attempt.sortie_id == sortie_id, Attempt.takeover == false()).group_by(Attempt.flown_on)
+_SORTIE_DAYS: dict[tuple, object] = {}  # statements by the rules' content: built once, not per signature
+
+
+def sortie_days_statement(rules: Sequence[CurrencyRule]):
+    """Rows of (day, per-rule count) of the attempts of the sortie bound as `sortie_id` that can count (not
+    taken over): what a new signature adds to its pilot's kept state (`server/currency/kept.py`)."""
+    key = tuple((rule.id, *(repr(getattr(rule, name)) for name in RULE_CONDITION_FIELDS)) for rule in rules)
+    statement = _SORTIE_DAYS.get(key)
+    if statement is None:
+        per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
+        statement = base_from(select(Attempt.flown_on, *per_day)).where(
+            Attempt.sortie_id == bindparam("sortie_id"), Attempt.takeover == false()).group_by(Attempt.flown_on)
+        if len(_SORTIE_DAYS) > 64:
+            _SORTIE_DAYS.clear()
+        _SORTIE_DAYS[key] = statement
+    return statement
 
 
 def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,

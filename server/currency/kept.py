@@ -179,17 +179,14 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
 
     Merging with the kept dates and pruning as of today gives what a recomputation would: a date pruned
     on the day a row was written is older than the window and than min_count newer dates, and stays so.
-    False when the pilot's rows are not those of the rules that apply (then the caller recomputes)."""
-    rules = rules_service.list_rules(session)
+    False when the pilot has no kept row (never built, or no rule applies): then the caller recomputes."""
     rows = {row.rule_id: row for row in session.scalars(
         select(KeptStanding).where(KeptStanding.pilot_id == sortie.pilot_id))}
-    if rows.keys() != {rule.id for _, rule in applicable_pairs(session, rules, [sortie.pilot_id])}:
+    if not rows:
         return False
-    wanted = [rule for rule in rules if rule.id in rows]
-    if not wanted:
-        return True
+    wanted = [rule for rule in rules_service.list_rules(session) if rule.id in rows]
     added: dict[int, list[date]] = defaultdict(list)
-    for flown_on, *counts in session.execute(evaluation.sortie_days_statement(wanted, sortie_id=sortie.id)):
+    for flown_on, *counts in session.execute(evaluation.sortie_days_statement(wanted), {"sortie_id": sortie.id}):
         for rule, n in zip(wanted, counts, strict=True):
             added[rule.id].extend([flown_on] * int(n or 0))
     today = people.school_today(session)
