@@ -7,11 +7,15 @@ the board read from the kept rows on later days equals the set-wise evaluation o
 SQLite and, with FLAREBOOK_TEST_DATABASE_URL, on PostgreSQL.
 """
 import random
+import subprocess
+import sys
 from dataclasses import astuple
 from datetime import UTC, datetime, timedelta
 
+import pytest
 from sqlalchemy import select, update
 
+from server.config import PROJECT_ROOT
 from server.currency import board, kept, kept_check
 from server.currency import service as rules_service
 from server.currency.models import KeptStanding
@@ -181,3 +185,14 @@ def test_verify_names_the_pilot_and_rule_of_a_tampered_row(db, world):
     assert found and {(d.pilot_id, d.rule_id) for d in found} == {(world.student.id, rule.id)}
     assert kept.rebuild(db) > 0
     assert kept_check.differences(db) == []
+
+
+@pytest.mark.parametrize("entry", ["server.app", "server.cli", "server.demo", "server.models"])
+def test_every_process_that_signs_keeps_the_board_state(entry):
+    """Each way in, imported alone in a fresh interpreter, has the kept state's hooks in place."""
+    check = (f"import {entry}; from server.logbook import hooks as l; from server.people import hooks as p; "
+             "from server.fleet import hooks as f; from server.currency import kept; "
+             "assert kept.after_signing in l.AFTER_SIGNING and kept.after_person_change in p.AFTER_PERSON_CHANGE "
+             "and kept.after_aircraft_retyped in f.AFTER_AIRCRAFT_RETYPED")
+    done = subprocess.run([sys.executable, "-c", check], cwd=PROJECT_ROOT, capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
