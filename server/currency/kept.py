@@ -20,7 +20,7 @@ from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from datetime import date
 
-from sqlalchemy import String, delete, exists, insert, select, tuple_, type_coerce
+from sqlalchemy import String, bindparam, delete, exists, insert, select, tuple_, type_coerce, update
 from sqlalchemy.orm import Session
 
 from server.compute.currency import KeptFacts, kept_facts
@@ -133,9 +133,14 @@ def refresh(session: Session, *, person_ids: Iterable[int] | None = None, rule_i
     today = people.school_today(session)
     rows = [_row(pid, rule_id, facts, today) for (pid, rule_id), facts in
             fresh_facts(session, rules=rules, today=today, person_ids=person_ids).items()]
-    if rows:
-        session.execute(insert(KeptStanding), rows)
+    _insert(session, rows)
     return len(rows)
+
+
+def _insert(session: Session, rows: list[dict]) -> None:
+    """Core multi-row INSERTs: the ORM's bulk path would send rows one statement at a time here."""
+    if rows:
+        session.connection().execute(insert(KeptStanding.__table__), rows)
 
 
 def rebuild(session: Session) -> int:
@@ -180,23 +185,28 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     Merging with the kept dates and pruning as of today gives what a recomputation would: a date pruned
     on the day a row was written is older than the window and than min_count newer dates, and stays so.
     False when the pilot has no kept row (never built, or no rule applies): then the caller recomputes."""
-    rows = {row.rule_id: row for row in session.scalars(
-        select(KeptStanding).where(KeptStanding.pilot_id == sortie.pilot_id))}
-    if not rows:
+    stored = dict(session.connection().execute(select(KeptStanding.rule_id, KeptStanding.dates).where(
+        KeptStanding.pilot_id == sortie.pilot_id)).all())
+    if not stored:
         return False
-    wanted = [rule for rule in rules_service.list_rules(session) if rule.id in rows]
+    wanted = [rule for rule in rules_service.list_rules(session) if rule.id in stored]
     added: dict[int, list[date]] = defaultdict(list)
     for flown_on, *counts in session.execute(evaluation.sortie_days_statement(wanted), {"sortie_id": sortie.id}):
         for rule, n in zip(wanted, counts, strict=True):
             added[rule.id].extend([flown_on] * int(n or 0))
+    changed = [rule for rule in wanted if added[rule.id]]
+    if not changed:
+        return True
     today = people.school_today(session)
-    for rule in wanted:
-        if not added[rule.id]:
-            continue
-        row = rows[rule.id]
-        facts = kept_facts([date.fromisoformat(q) for q in row.dates] + added[rule.id], as_of=today, **_window(rule))
-        for name, value in _row(row.pilot_id, rule.id, facts, today).items():
-            setattr(row, name, value)
+    rows = [_row(sortie.pilot_id, rule.id, kept_facts([date.fromisoformat(q) for q in stored[rule.id]]
+                                                      + added[rule.id], as_of=today, **_window(rule)), today)
+            for rule in changed]
+    # One executemany however many rules moved (psycopg pipelines it: one round trip, not one per row).
+    table = KeptStanding.__table__
+    session.connection().execute(
+        update(table).where(table.c.pilot_id == bindparam("key_pilot"), table.c.rule_id == bindparam("key_rule"))
+        .values({name: bindparam(name) for name in rows[0] if name not in ("pilot_id", "rule_id")}),
+        [row | {"key_pilot": row["pilot_id"], "key_rule": row["rule_id"]} for row in rows])
     return True
 
 
