@@ -20,7 +20,7 @@ from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from datetime import date
 
-from sqlalchemy import String, bindparam, delete, exists, insert, select, tuple_, type_coerce, update
+from sqlalchemy import String, bindparam, delete, exists, insert, select, true, tuple_, type_coerce, update
 from sqlalchemy.orm import Session
 
 from server.compute.currency import KeptFacts, kept_facts
@@ -185,15 +185,23 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     Merging with the kept dates and pruning as of today gives what a recomputation would: a date pruned
     on the day a row was written is older than the window and than min_count newer dates, and stays so.
     False when the pilot has no kept row (never built, or no rule applies): then the caller recomputes."""
-    stored = dict(session.connection().execute(select(KeptStanding.rule_id, KeptStanding.dates).where(
-        KeptStanding.pilot_id == sortie.pilot_id)).all())
-    if not stored:
+    rules = rules_service.list_rules(session)
+    if not rules:
+        return True
+    # One round trip: the pilot's kept rows, each beside the sortie's per-rule counts (one day per sortie).
+    days = evaluation.sortie_days_statement(rules).subquery("days")
+    found = session.connection().execute(
+        select(KeptStanding.rule_id, KeptStanding.dates, days).select_from(KeptStanding)
+        .outerjoin(days, true()).where(KeptStanding.pilot_id == sortie.pilot_id), {"sortie_id": sortie.id}).all()
+    if not found:
         return False
-    wanted = [rule for rule in rules_service.list_rules(session) if rule.id in stored]
+    stored = {row[0]: row[1] for row in found}
+    wanted = [rule for rule in rules if rule.id in stored]
+    at = {rule.id: 3 + i for i, rule in enumerate(rules)}  # rule_id, dates, flown_on, then one count per rule
     added: dict[int, list[date]] = defaultdict(list)
-    for flown_on, *counts in session.execute(evaluation.sortie_days_statement(wanted), {"sortie_id": sortie.id}):
-        for rule, n in zip(wanted, counts, strict=True):
-            added[rule.id].extend([flown_on] * int(n or 0))
+    for row in found:
+        if row[2] is not None:
+            added[row[0]].extend([row[2]] * int(row[at[row[0]]] or 0))
     changed = [rule for rule in wanted if added[rule.id]]
     if not changed:
         return True
