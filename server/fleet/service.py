@@ -5,6 +5,7 @@ from sqlalchemy.orm import Session
 
 from server.compute.hv import in_avoid_region
 from server.errors import Conflict, Invalid, NotFound
+from server.fleet import hooks
 from server.fleet.hvchart import Entry
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate, TypeUpdate
@@ -156,6 +157,8 @@ def update_aircraft(session: Session, *, row: Aircraft, data: AircraftCreate, ac
     session.refresh(row)  # the joined type follows the new type_id
     audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
                  before=before, after={"registration": registration, "type_id": data.type_id})
+    if before["type_id"] != data.type_id:
+        hooks.aircraft_retyped(session, row)
     return row
 
 
