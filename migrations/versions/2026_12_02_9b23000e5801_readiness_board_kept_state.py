@@ -6,14 +6,14 @@ by other means is filled with `flarebook currency rebuild`. Kept out of the migr
 revision never runs application code that later changes could break.
 
 Revision ID: 9b23000e5801
-Revises: d7e2a9c41b83
+Revises: b5c1e8d3a7f2
 Created: 2026-12-02 06:09:34
 """
 import sqlalchemy as sa
 from alembic import op
 
 revision = '9b23000e5801'
-down_revision = 'd7e2a9c41b83'
+down_revision = 'b5c1e8d3a7f2'
 branch_labels = None
 depends_on = None
 
