@@ -20,7 +20,7 @@ from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from datetime import date
 
-from sqlalchemy import String, bindparam, delete, exists, insert, select, true, tuple_, type_coerce, update
+from sqlalchemy import String, bindparam, delete, exists, insert, select, text, true, tuple_, type_coerce, update
 from sqlalchemy.orm import Session
 
 from server.compute.currency import KeptFacts, kept_facts
@@ -111,6 +111,27 @@ def _row(pilot_id: int, rule_id: int, facts: KeptFacts, today: date) -> dict:
             "window_count": facts.window_count, "counted_through": facts.counted_through}
 
 
+# Any fixed number, apart from the audit chain's: PostgreSQL advisory locks over the kept rows.
+KEPT_LOCK_KEY = 0x6B657074  # "kept"
+
+
+def lock_kept_rows(session: Session, person_ids: Sequence[int] | None) -> None:
+    """Take turns over the kept rows until commit: a pilot's writers one at a time (a signing reads the
+    rows it rewrites, so two at once would lose one's dates), and a change for everyone alone.
+
+    PostgreSQL only: a shared lock on the whole state plus one lock per pilot, or the whole state's lock
+    exclusively. On SQLite a writing transaction already holds the database's one write lock."""
+    if session.get_bind().dialect.name != "postgresql":
+        return
+    if person_ids is None:
+        session.execute(text("SELECT pg_advisory_xact_lock(:key)"), {"key": KEPT_LOCK_KEY})
+        return
+    session.execute(text("SELECT pg_advisory_xact_lock_shared(:key)"), {"key": KEPT_LOCK_KEY})
+    for person_id in sorted(set(person_ids)):  # one order everywhere, so two writers never wait on each other
+        session.execute(text("SELECT pg_advisory_xact_lock(:key, :person)"),
+                        {"key": KEPT_LOCK_KEY & 0x7FFFFFFF, "person": person_id})
+
+
 def refresh(session: Session, *, person_ids: Iterable[int] | None = None, rule_ids: Iterable[int] | None = None) -> int:
     """Rewrite the kept rows of these people (None: everyone) under these rules (None: every rule).
 
@@ -119,6 +140,7 @@ def refresh(session: Session, *, person_ids: Iterable[int] | None = None, rule_i
     rule_ids = None if rule_ids is None else sorted(set(rule_ids))
     if person_ids == [] or rule_ids == []:
         return 0
+    lock_kept_rows(session, person_ids)
     gone = delete(KeptStanding)
     if person_ids is not None:
         gone = gone.where(KeptStanding.pilot_id.in_(person_ids))
@@ -188,6 +210,7 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     rules = rules_service.list_rules(session)
     if not rules:
         return True
+    lock_kept_rows(session, [sortie.pilot_id])
     # One round trip: the pilot's kept rows, each beside the sortie's per-rule counts (one day per sortie).
     days = evaluation.sortie_days_statement(rules).subquery("days")
     found = session.connection().execute(

@@ -9,6 +9,8 @@ SQLite and, with FLAREBOOK_TEST_DATABASE_URL, on PostgreSQL.
 import random
 import subprocess
 import sys
+import threading
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import astuple
 from datetime import UTC, datetime, timedelta
 
@@ -16,6 +18,7 @@ import pytest
 from sqlalchemy import select, update
 
 from server.config import PROJECT_ROOT
+from server.db import transaction
 from server.currency import board, kept, kept_check
 from server.currency import service as rules_service
 from server.currency.models import KeptStanding
@@ -23,6 +26,7 @@ from server.currency.schemas import RuleCreate
 from server.fleet import service as fleet
 from server.fleet.models import Aircraft
 from server.fleet.schemas import AircraftCreate
+from server.logbook import hooks as logbook_hooks
 from server.logbook import service as logbook
 from server.logbook.models import Sortie
 from server.logbook.schemas import AttemptFields, SortieCreate
@@ -196,3 +200,45 @@ def test_every_process_that_signs_keeps_the_board_state(entry):
              "and kept.after_aircraft_retyped in f.AFTER_AIRCRAFT_RETYPED")
     done = subprocess.run([sys.executable, "-c", check], cwd=PROJECT_ROOT, capture_output=True, text=True, timeout=120)
     assert done.returncode == 0, done.stderr
+
+
+def test_two_signings_for_one_pilot_at_once_both_reach_the_kept_state(app, db, world, monkeypatch):
+    """Two app processes signing the same pilot's sorties at the same moment: each signing reads the
+    pilot's kept rows and rewrites them, so without taking turns the later write drops the earlier's
+    dates (a lost update; PostgreSQL's READ COMMITTED allows it). The test holds both transactions open
+    after the kept rows are written, as two processes would overlap, then checks the state."""
+    chief = db.get(Person, world.chief.id)
+    rules_service.create_rule(db, actor=chief, data=RuleCreate(
+        name="Students: four in 90 days", applies_to_roles=["student"], window_days=90, min_count=4))
+    drafts = []
+    for days_ago in (3, 5):
+        sortie = logbook.create_sortie(db, actor=chief, data=SortieCreate(
+            flown_at=datetime.now(UTC) - timedelta(days=days_ago), aircraft_id=world.aircraft.id,
+            pilot_id=world.student.id, site_id=world.site.id, instructor_id=chief.id, oat_c=15,
+            altimeter_hpa=1013.25))
+        logbook.add_attempt(db, actor=chief, sortie=sortie, data=AttemptFields(
+            maneuver="straight_in", termination="power_recovery", grade="satisfactory"))
+        drafts.append(sortie.id)
+    db.commit()
+    both_written = threading.Barrier(2)
+
+    def hold_open(session, sorties):  # after kept's own hook: both have written, neither committed
+        try:
+            both_written.wait(timeout=3)
+        except threading.BrokenBarrierError:
+            pass  # the other is waiting its turn, as it should
+
+    monkeypatch.setattr(logbook_hooks, "AFTER_SIGNING", [*logbook_hooks.AFTER_SIGNING, hold_open])
+
+    def sign(sortie_id):
+        with transaction(app.state.sessions) as session:
+            logbook.record_instructor_signature(session, actor=session.get(Person, chief.id),
+                                                sortie=session.get(Sortie, sortie_id))
+
+    with ThreadPoolExecutor(max_workers=2) as pool:
+        for done in [pool.submit(sign, sortie_id) for sortie_id in drafts]:
+            done.result()
+    db.expire_all()
+    assert kept_check.differences(db) == []
+    row = db.scalar(select(KeptStanding).where(KeptStanding.pilot_id == world.student.id))
+    assert len(row.dates) == 2, "both signed sorties count toward the student's rule"
