@@ -3,16 +3,12 @@ import argparse
 
 from server.config import get_settings
 from server.currency import kept, kept_check
-from server.db import make_engine, make_session_factory, transaction
+from server.db import command_session
 from server.errors import FlarebookError
 
 
-def _sessions():
-    return make_session_factory(make_engine(get_settings().database_url))
-
-
 def cmd_verify(args) -> str:
-    with _sessions()() as session:
+    with command_session(get_settings().database_url, writing=False) as session:
         equal, text = kept_check.report(session)
     if not equal:
         raise FlarebookError(text)  # the command exits 1 with the differences
@@ -20,7 +16,7 @@ def cmd_verify(args) -> str:
 
 
 def cmd_rebuild(args) -> str:
-    with transaction(_sessions()) as session:
+    with command_session(get_settings().database_url) as session:
         rows = kept.rebuild(session)
     return f"Readiness board kept state rebuilt: {rows} rows."
 
