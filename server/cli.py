@@ -5,8 +5,10 @@ import sys
 from sqlalchemy import select
 
 from server.config import get_settings
-from server.db import make_engine, make_session_factory, transaction
+from server.db import command_session
 from server.errors import FlarebookError
+from server.currency import commands as currency_commands
+from server.currency import kept
 from server.imports import commands as import_commands
 from server.migrate import upgrade
 import server.models  # noqa: F401  (every table on Base, for export)
@@ -18,20 +20,23 @@ from server.signed_records import RECORD_CHECKS
 from server.vocabulary import ROLES
 
 
-def _sessions():
-    return make_session_factory(make_engine(get_settings().database_url))
+def _migrate() -> None:
+    """The schema to the newest revision, then the readiness board's kept state if it was never built."""
+    upgrade(get_settings().database_url)
+    with command_session(get_settings().database_url) as session:
+        kept.rebuild_if_unbuilt(session)
 
 
 def cmd_init(args) -> str:
-    upgrade(get_settings().database_url)
+    _migrate()
     return f"Database ready: {get_settings().database_url}"
 
 
 def cmd_demo(args) -> str:
     from server.demo import load_demo
 
-    upgrade(get_settings().database_url)
-    with transaction(_sessions()) as session:
+    _migrate()
+    with command_session(get_settings().database_url) as session:
         if session.scalar(select(Person.id).limit(1)) is not None:
             return "The database already has people in it; the demo school was not loaded."
         summary = load_demo(session)
@@ -43,21 +48,21 @@ def cmd_serve(args) -> str:
 
     from server.app import create_app
 
-    upgrade(get_settings().database_url)
+    _migrate()
     print(f"Flarebook on http://{args.host}:{args.port} (stop with Ctrl+C)", flush=True)
     uvicorn.run(create_app(), host=args.host, port=args.port, log_level="info")
     return ""
 
 
 def cmd_user_add(args) -> str:
-    with transaction(_sessions()) as session:
+    with command_session(get_settings().database_url) as session:
         person = people.create_person(session, name=args.name, email=args.email, roles=args.role,
                                       password=args.password)
         return f"Added {person.name} <{person.email}> as {', '.join(person.roles)} (id {person.id})"
 
 
 def cmd_token_new(args) -> str:
-    with transaction(_sessions()) as session:
+    with command_session(get_settings().database_url) as session:
         person = people.find_by_email(session, args.email)
         if person is None or not person.active:
             raise FlarebookError(f"No active person signs in as {args.email}.")
@@ -65,7 +70,7 @@ def cmd_token_new(args) -> str:
 
 
 def cmd_token_revoke(args) -> str:
-    with transaction(_sessions()) as session:
+    with command_session(get_settings().database_url) as session:
         person = people.find_by_email(session, args.email)
         if person is None:
             raise FlarebookError(f"Nobody signs in as {args.email}.")
@@ -104,6 +109,7 @@ def build_parser() -> argparse.ArgumentParser:
     # backup, restore, export, audit verify, audit head; with every area's signed-record check
     records_commands.add_commands(sub, record_checks=RECORD_CHECKS)
     import_commands.add_commands(sub)  # import KIND FILE
+    currency_commands.add_commands(sub)  # currency verify, currency rebuild
     track_commands.add_commands(sub)  # track import
     return parser
 

@@ -166,3 +166,19 @@ def transaction(factory: sessionmaker[Session]) -> Iterator[Session]:
         except BaseException:
             session.rollback()
             raise
+
+
+@contextmanager
+def command_session(url: str, *, writing: bool = True) -> Iterator[Session]:
+    """A command's one unit of work (or read) on the database at `url`, with an engine of its own that
+    is closed afterwards: a command run keeps no pool of connections open behind it."""
+    engine = make_engine(url)
+    try:
+        if writing:
+            with transaction(make_session_factory(engine)) as session:
+                yield session
+        else:
+            with make_session_factory(engine)() as session:
+                yield session
+    finally:
+        engine.dispose()

@@ -10,6 +10,7 @@ from datetime import UTC, date, datetime, time, timedelta
 from sqlalchemy.orm import Session
 
 from server.compute.track_synthetic import DemoAutorotation, synthetic_track_csv
+from server.currency import kept
 from server.currency.models import CurrencyRule
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.logbook import service as logbook
@@ -87,8 +88,10 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
     _standards(session)
     program = _program(session)
     for key, (instructor, first_week, _last, _growth) in STUDENTS.items():
+        # Each student's stage checks are signed by the other line instructor (the chief pilot may too).
+        checker = "tomas" if instructor == "ines" else "ines"
         session.add(Enrolment(program_id=program.id, student_id=who[key].id, instructor_id=who[instructor].id,
-                              started_on=today - timedelta(weeks=first_week)))
+                              check_instructor_id=who[checker].id, started_on=today - timedelta(weeks=first_week)))
     _rules(session, kestrel.id)
     session.flush()
 
@@ -111,6 +114,8 @@ def load_demo(session: Session, *, today: date | None = None, seed: int = 7) -> 
             # The chief pilot assigns recurrent training: Ines has no enrolment with the chief pilot.
             count += _sortie(session, rng, who[instructor], who[key], aircraft[0], sites[0], flown, 1.0, sign=True,
                              assigned_by=who["chief"])
+    # The example rules went in as rows, not through the rules service: the board's kept state from scratch.
+    kept.rebuild(session)
     return f"Loaded {SCHOOL_NAME}: {len(PEOPLE)} people, {count} practice autorotations. Password: {DEMO_PASSWORD}"
 
 

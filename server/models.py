@@ -1,5 +1,8 @@
 """Every table, imported in one place for Alembic and the app."""
-from server.currency.models import CalendarFeed, CurrencyRule
+# Importing kept fills the logbook's, people's and fleet's hook lists: every process that imports the
+# tables (app, command line, demo, tests, migrations) keeps the readiness board's state in step.
+from server.currency import kept  # noqa: F401
+from server.currency.models import CalendarFeed, CurrencyRule, KeptStanding
 from server.db import Base
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.idempotency import IdempotencyKey
@@ -20,7 +23,8 @@ from server.training.models import (
 
 __all__ = [
     "Aircraft", "ApiToken", "Attempt", "AuditEvent", "Base", "CalendarFeed", "CurrencyRule",
-    "Enrolment", "HelicopterType", "IdempotencyKey", "ImportBatch", "ImportedRecord", "Lesson", "LessonCompletion",
+    "Enrolment", "HelicopterType", "IdempotencyKey", "ImportBatch", "ImportedRecord", "KeptStanding", "Lesson",
+    "LessonCompletion",
     "LessonRequirement", "Person", "PersonRole", "Program", "School", "SignInFailure", "Signature",
     "Site", "Sortie", "Stage", "StageCheck", "Standard", "Track", "UserSession",
 ]

@@ -2,20 +2,51 @@
 set), the app, a small invented school, and a signed-in client per role."""
 import os
 import re
+import time
 import uuid
 
+import argon2
 import pytest
 from fastapi.testclient import TestClient
 from sqlalchemy import create_engine, text
 from sqlalchemy.engine import make_url
+from sqlalchemy.exc import OperationalError
 
 from server.app import create_app
 from server.config import Settings
 from server.migrate import upgrade
 from server.models import Base
+from server.people import security
+from tests.browser.fixtures import (  # noqa: F401 (the real-browser fixtures, for page tests in every folder)
+    axe_path,
+    base_url,
+    browser_context_args,
+    browser_type_launch_args,
+    chromium_path,
+    live_server,
+)
 from tests.support import PASSWORD, World, audit_table_writable, build_world
 
 POSTGRES_URL = os.environ.get("FLAREBOOK_TEST_DATABASE_URL")
+
+
+@pytest.fixture(scope="session", autouse=True)
+def cheap_password_hashes():
+    """argon2-cffi's cheapest profile for the test accounts: every test builds a school of five people
+    and signs some in, and at production cost hashing took most of the suite's time. The test of the
+    stored parameters asks for `production_password_hashes`; commands run as subprocesses keep them."""
+    production = security._hasher
+    security._hasher = argon2.PasswordHasher.from_parameters(argon2.profiles.CHEAPEST)
+    yield
+    security._hasher = production
+
+
+@pytest.fixture
+def production_password_hashes():
+    cheap = security._hasher
+    security._hasher = security.PRODUCTION_HASHER
+    yield
+    security._hasher = cheap
 
 
 @pytest.fixture(scope="session")
@@ -60,13 +91,23 @@ def empty_database(request):
     app.state.stranger_tally.take()  # strangers counted in one test are not written in the next
     engine = app.state.engine
     tables = list(reversed(Base.metadata.sorted_tables))
-    with engine.begin() as conn:
-        with audit_table_writable(conn):  # the audit table is append-only; tests start over anyway
-            if engine.dialect.name == "postgresql":
-                conn.execute(text("TRUNCATE " + ", ".join(f'"{t.name}"' for t in tables) + " RESTART IDENTITY CASCADE"))
-            else:
-                for table in tables:
-                    conn.execute(table.delete())
+    # A page test's live server may still be answering the browser's last request; on PostgreSQL the
+    # TRUNCATE can then lose a deadlock to it, and trying again once that request is done succeeds.
+    for attempt in range(5):
+        try:
+            with engine.begin() as conn:
+                with audit_table_writable(conn):  # the audit table is append-only; tests start over anyway
+                    if engine.dialect.name == "postgresql":
+                        conn.execute(text("TRUNCATE " + ", ".join(f'"{t.name}"' for t in tables)
+                                          + " RESTART IDENTITY CASCADE"))
+                    else:
+                        for table in tables:
+                            conn.execute(table.delete())
+            return
+        except OperationalError as error:
+            if "deadlock" not in str(error) or attempt == 4:
+                raise
+            time.sleep(0.2)
 
 
 @pytest.fixture

@@ -21,11 +21,23 @@ fi
 
 postgres_url="${FLAREBOOK_TEST_DATABASE_URL:-}"
 
-echo "== all tests on SQLite"
-env -u FLAREBOOK_TEST_DATABASE_URL .venv/bin/pytest "$@"
-
-if [ -n "$postgres_url" ]; then
-  echo "== all tests that touch the database, on PostgreSQL"
-  # The pure computations in tests/compute have no database and ran above.
-  FLAREBOOK_TEST_DATABASE_URL="$postgres_url" .venv/bin/pytest --ignore=tests/compute "$@"
+if [ -z "$postgres_url" ]; then
+  echo "== all tests on SQLite"
+  exec env -u FLAREBOOK_TEST_DATABASE_URL .venv/bin/pytest "$@"
 fi
+
+# Both passes at once, one per core: PostgreSQL's in the background, its report printed after SQLite's.
+# The pure computations in tests/compute have no database and run in the SQLite pass only.
+postgres_log="$(mktemp)"
+FLAREBOOK_TEST_DATABASE_URL="$postgres_url" .venv/bin/pytest --ignore=tests/compute "$@" >"$postgres_log" 2>&1 &
+postgres_pid=$!
+echo "== all tests on SQLite (the PostgreSQL pass runs beside it)"
+sqlite_status=0
+env -u FLAREBOOK_TEST_DATABASE_URL .venv/bin/pytest "$@" || sqlite_status=$?
+postgres_status=0
+wait "$postgres_pid" || postgres_status=$?
+echo "== all tests that touch the database, on PostgreSQL"
+cat "$postgres_log"
+rm -f "$postgres_log"
+echo "== SQLite pass exit $sqlite_status, PostgreSQL pass exit $postgres_status"
+[ "$sqlite_status" -eq 0 ] && [ "$postgres_status" -eq 0 ]

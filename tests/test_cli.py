@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pytest
 from fastapi.testclient import TestClient
-from sqlalchemy import create_engine, func, inspect, select
+from sqlalchemy import create_engine, func, inspect, select, text
 
 from server.app import create_app
 from server.config import PROJECT_ROOT, Settings
@@ -139,3 +139,45 @@ def test_demo_loads_once_and_a_second_run_says_it_did_not_load_again(run, databa
     assert second.returncode == 0, second.stderr
     assert "not loaded" in second.stdout
     assert count_people(database_url) == people
+
+
+def test_currency_verify_catches_a_tampered_kept_row_and_rebuild_mends_it(run, database_url):
+    assert run("demo").returncode == 0
+    clean = run("currency", "verify")
+    assert clean.returncode == 0, clean.stderr
+    assert "matches a full evaluation" in clean.stdout
+    engine = create_engine(database_url)
+    try:
+        with engine.begin() as conn:
+            pilot_id, rule_id, count = conn.execute(text(
+                "SELECT k.pilot_id, k.rule_id, k.window_count FROM currency_kept_standings k "
+                "ORDER BY k.window_count DESC, k.pilot_id, k.rule_id LIMIT 1")).one()
+            conn.execute(text("UPDATE currency_kept_standings SET window_count = :n WHERE pilot_id = :p AND rule_id = :r"),
+                         {"n": count + 3, "p": pilot_id, "r": rule_id})
+            name = conn.scalar(text("SELECT name FROM people WHERE id = :p"), {"p": pilot_id})
+            rule = conn.scalar(text("SELECT name FROM currency_rules WHERE id = :r"), {"r": rule_id})
+    finally:
+        engine.dispose()
+    tampered = run("currency", "verify")
+    assert tampered.returncode == 1 and tampered.stdout == ""
+    assert f"pilot {pilot_id} ({name}), rule {rule_id} ({rule})" in tampered.stderr
+    assert "window_count" in tampered.stderr
+    rebuilt = run("currency", "rebuild")
+    assert rebuilt.returncode == 0, rebuilt.stderr
+    assert run("currency", "verify").returncode == 0
+
+
+def test_init_builds_the_kept_state_of_a_database_that_never_had_one(run, database_url):
+    """As after the migration that adds the table to a school's existing records."""
+    assert run("demo").returncode == 0
+    engine = create_engine(database_url)
+    try:
+        with engine.begin() as conn:
+            conn.execute(text("DELETE FROM currency_kept_standings"))
+        assert run("currency", "verify").returncode == 1
+        assert run("init").returncode == 0
+        with engine.connect() as conn:
+            assert conn.scalar(text("SELECT count(*) FROM currency_kept_standings")) > 0
+    finally:
+        engine.dispose()
+    assert run("currency", "verify").returncode == 0

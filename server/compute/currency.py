@@ -121,6 +121,39 @@ def status_from_summary(
 
     window = {"window_days": window_days, "window_months": window_months}
     current_until = window_end(latest[-1], **window) if len(latest) == min_count else None
+    return status_from_facts(
+        as_of=as_of, current_until=current_until, count_in_window=count_in_window, ever=ever,
+        still_counting=still_counting_after(latest, current_until, **window), min_count=min_count,
+        warn_days=warn_days, describe=describe, describe_one=describe_one,
+    )
+
+
+def still_counting_after(latest_dates_desc: Sequence[date], current_until: date | None, *,
+                         window_days: int | None, window_months: int | None) -> int:
+    """How many of the newest qualifying dates still count the day after current_until (0 without one)."""
+    if current_until is None:
+        return 0
+    return sum(1 for q in latest_dates_desc
+               if window_end(q, window_days=window_days, window_months=window_months) > current_until)
+
+
+def status_from_facts(
+    *,
+    as_of: date,
+    current_until: date | None,
+    count_in_window: int,
+    ever: bool,
+    still_counting: int,
+    min_count: int,
+    warn_days: int,
+    describe: str = DEFAULT_DESCRIBE,
+    describe_one: str | None = None,
+) -> CurrencyStatus:
+    """The status and its words from the facts that decide it (status_from_summary derives them).
+
+    current_until comes from the min_count newest dates (None with fewer), still_counting from
+    `still_counting_after`; the readiness board's kept state stores both, so today's board needs no dates.
+    """
     needed = max(0, min_count - count_in_window)
     if needed == 0:
         # count >= min_count puts the min_count-th newest date inside the window: current_until >= as_of.
@@ -132,7 +165,6 @@ def status_from_summary(
     words = _Words(describe, describe_one)
     if needed == 0:
         # Attempts still counting the day after current_until keep the pilot current past it.
-        still_counting = sum(1 for q in latest if window_end(q, **window) > current_until)
         to_stay = min_count - still_counting
         prefix = "Due soon: current" if status == "due_soon" else "Current"
         remedy = (
@@ -155,6 +187,66 @@ def status_from_summary(
         needed=needed,
         remedy=remedy,
     )
+
+
+@dataclass(frozen=True)
+class KeptFacts:
+    """What the readiness board keeps per pilot and rule, computed on `counted_on` (see `kept_facts`)."""
+
+    dates_desc: tuple[date, ...]  # every qualifying date that can still matter on counted_on or later
+    newest_on: date | None
+    current_until: date | None  # from the min_count newest of dates_desc
+    still_counting: int
+    window_count: int  # dates_desc inside the window on counted_on (later dates included)
+    counted_through: date | None  # window_count holds through this date; None: it is 0 and stays 0
+
+
+def kept_dates(qualifying_dates: Sequence[date], *, as_of: date, window_days: int | None,
+               window_months: int | None, min_count: int) -> tuple[date, ...]:
+    """The qualifying dates that can still matter on as_of or any later day, newest first: every date
+    inside the window on as_of or after it, and the min_count newest by as_of. An older date can never
+    count again: the window only moves forward, and min_count newer dates stand before it."""
+    start = window_start(as_of, window_days=window_days, window_months=window_months)
+    kept, rank = [], 0  # rank: how many dates by as_of are newer than this one
+    for q in sorted(qualifying_dates, reverse=True):
+        if q > as_of:
+            kept.append(q)
+            continue
+        if q >= start or rank < min_count:
+            kept.append(q)
+        rank += 1
+    return tuple(kept)
+
+
+def kept_facts(qualifying_dates: Sequence[date], *, as_of: date, window_days: int | None,
+               window_months: int | None, min_count: int) -> KeptFacts:
+    """The kept facts of one pilot under one rule on as_of (the day they are written).
+
+    On a later day T they decide the status without the dates, through status_from_facts, while
+    T <= counted_through and no date is after T (`facts_hold_on`); otherwise evaluate_currency
+    reads dates_desc, which still holds every date that can count on T.
+    """
+    window = {"window_days": window_days, "window_months": window_months}
+    dates = kept_dates(qualifying_dates, as_of=as_of, min_count=min_count, **window)
+    latest = dates[:min_count]
+    current_until = window_end(latest[-1], **window) if len(latest) == min_count else None
+    start = window_start(as_of, **window)
+    in_window = [q for q in dates if q >= start]
+    return KeptFacts(
+        dates_desc=dates,
+        newest_on=dates[0] if dates else None,
+        current_until=current_until,
+        still_counting=still_counting_after(latest, current_until, **window),
+        window_count=len(in_window),
+        counted_through=window_end(in_window[-1], **window) if in_window else None,
+    )
+
+
+def facts_hold_on(day: date, *, counted_on: date, newest_on: date | None, counted_through: date | None) -> bool:
+    """Whether kept facts written on counted_on decide the status on `day` as they stand."""
+    if day < counted_on or (newest_on is not None and newest_on > day):
+        return False
+    return counted_through is None or day <= counted_through
 
 
 def format_date(d: date) -> str:

@@ -3,13 +3,13 @@ from datetime import date
 
 from fastapi import APIRouter, Query, Request, Response
 from pydantic import ValidationError
+from pydantic_core import to_json
 
 from server.currency import board, feeds
 from server.currency import service as rules_service
 from server.currency.models import CalendarFeed, CurrencyRule
 from server.currency.schemas import (
     BoardRead,
-    BoardRowRead,
     CurrencyRead,
     FeedCreate,
     FeedRead,
@@ -100,13 +100,13 @@ def readiness_board(db: DbSession, person: SetupApiUser, as_of: date | None = No
     """Every active pilot against every rule that applies, soonest trouble first (chief pilots)."""
     as_of = as_of or people.school_today(db)
     rows = board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status)
-    # The rows come from our own evaluation, already in shape: serialise them once, without re-validating
-    # thousands of them (the board of a large school).
-    answer = BoardRead.model_construct(as_of=as_of, rows=[BoardRowRead.model_construct(
-        person_id=r.person_id, name=r.name, roles=list(r.roles), rule_id=r.rule_id, rule_name=r.rule_name,
-        status=r.status, current_until=r.current_until, qualifying_count=r.qualifying_count, needed=r.needed,
-        remedy=r.remedy) for r in rows])
-    return Response(answer.model_dump_json(), media_type="application/json")
+    # The rows come from our own evaluation, already in the shape of BoardRead: serialised once as plain
+    # values by pydantic's own encoder, without a model per row (thousands on a large school's board).
+    answer = {"as_of": as_of, "rows": [{
+        "person_id": r.person_id, "name": r.name, "roles": r.roles, "rule_id": r.rule_id, "rule_name": r.rule_name,
+        "status": r.status, "current_until": r.current_until, "qualifying_count": r.qualifying_count,
+        "needed": r.needed, "remedy": r.remedy} for r in rows]}
+    return Response(to_json(answer), media_type="application/json")
 
 
 @router.get("/calendar-feeds", response_model=list[FeedRead])

@@ -3,15 +3,21 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date, timedelta
 
-from sqlalchemy import select
 from sqlalchemy.orm import Session
 
-from server.compute.currency import STATUS_RANK, format_date
+from server.compute.currency import (
+    STATUS_RANK,
+    CurrencyStatus,
+    evaluate_currency,
+    facts_hold_on,
+    format_date,
+    status_from_facts,
+)
 from server.csv_export import csv_text
-from server.currency import evaluation
+from server.currency import evaluation, kept
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
-from server.people.models import Person, PersonRole
+from server.people import service as people
 from server.vocabulary import ROLE_LABELS
 
 STATUS_LABELS = {"current": "Current", "due_soon": "Due soon", "lapsed": "Lapsed", "never": "Never done"}
@@ -21,9 +27,11 @@ PAGE_SIZE = 50  # pilots per page: a school of 40 reads on one page
 CSV_HEADER = ("Pilot", "Roles", "Rule", "Status", "Date", "Qualifying in window", "Needed", "What to do")
 
 
-@dataclass(frozen=True)
+@dataclass(slots=True)  # not frozen: a frozen init costs three times as much, on thousands of rows
 class Standing:
-    """One person under one rule on the as-of date: a board row, an API row, a line on a home page."""
+    """One person under one rule on the as-of date: a board row, an API row, a line on a home page.
+
+    Made once and never changed."""
 
     person_id: int
     name: str
@@ -60,48 +68,105 @@ class Standing:
 
     def sort_key(self) -> tuple:
         """Soonest trouble first: never done, lapsed, due soon, current; earlier dates first within each."""
-        return (STATUS_RANK[self.status], self.current_until or date.max, self.name.casefold(), self.rule_name)
+        return (STATUS_RANK[self.status], self.current_until or date.max, self.name.casefold(), self.rule_name,
+                self.person_id, self.rule_id)
 
     def csv_row(self) -> tuple:
         return (self.name, self.role_words, self.rule_name, self.label, self.date_words,
                 self.qualifying_count, self.needed, self.remedy)
 
 
-def _people(session: Session, person_ids: Sequence[int] | None) -> list[tuple[int, str, tuple[str, ...]]]:
-    query = select(Person.id, Person.name).where(Person.active).order_by(Person.name, Person.id)
-    role_query = select(PersonRole.person_id, PersonRole.role).order_by(PersonRole.role)
-    if person_ids is not None:
-        query = query.where(Person.id.in_(list(person_ids)))
-        role_query = role_query.where(PersonRole.person_id.in_(list(person_ids)))
-    roles: dict[int, list[str]] = {}
-    for person_id, role in session.execute(role_query):
-        roles.setdefault(person_id, []).append(role)
-    return [(pid, name, tuple(roles.get(pid, ()))) for pid, name in session.execute(query)]
-
-
 def standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | None = None,
               person_ids: Sequence[int] | None = None) -> list[Standing]:
-    """Every active person against every rule that applies to them, soonest trouble first."""
+    """Every active person against every rule that applies to them, soonest trouble first.
+
+    For the school's today the kept state answers (`server/currency/kept.py`); any other date is
+    evaluated from the whole history."""
     rules = list(rules_service.list_rules(session) if rules is None else rules)
-    people = _people(session, person_ids)
-    pairs = [(person, rule) for person in people for rule in rules
+    if as_of == people.school_today(session):
+        found = kept_standings(session, as_of=as_of, rules=rules, person_ids=person_ids)
+        if found is not None:
+            return found
+    return evaluated_standings(session, as_of=as_of, rules=rules, person_ids=person_ids)
+
+
+def _standing(person_id: int, person: tuple[str, tuple[str, ...]], rule: CurrencyRule,
+              status: CurrencyStatus) -> Standing:
+    return _standing_of(person_id, person, (rule.id, rule.name, rule.warn_days), status)
+
+
+def _standing_of(person_id: int, person: tuple[str, tuple[str, ...]], rule: tuple[int, str, int],
+                 status: CurrencyStatus) -> Standing:
+    """rule: (id, name, warn_days), read once per rule rather than through the ORM per row."""
+    return Standing(person_id=person_id, name=person[0], roles=person[1], rule_id=rule[0], rule_name=rule[1],
+                    status=status.status, current_until=status.current_until,
+                    qualifying_count=status.qualifying_count, needed=status.needed, remedy=status.remedy,
+                    warn_days=rule[2])
+
+
+def evaluated_standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
+                        person_ids: Sequence[int] | None = None) -> list[Standing]:
+    """The standings evaluated set-wise from the whole history (`evaluation.summaries`)."""
+    people_rows = kept.active_people(session, person_ids)
+    pairs = [(person, rule) for person in people_rows for rule in rules
              if rules_service.applies_to(rule, person_id=person[0], roles=list(person[2]))]
     if not pairs:
         return []
     wanted_ids = {rule.id for _, rule in pairs}
     wanted_rules = [rule for rule in rules if rule.id in wanted_ids]
     found = evaluation.summaries(session, rules=wanted_rules, as_of=as_of,
-                                 pilot_ids=None if person_ids is None else [p[0] for p in people])
+                                 pilot_ids=None if person_ids is None else [p[0] for p in people_rows])
     types = rules_service.type_names(session)
     words = {rule.id: rules_service.describe(rule, types) for rule in wanted_rules}
     out = []
     for (person_id, name, roles), rule in pairs:
         summary = found.get((person_id, rule.id), evaluation.NEVER)
         status = evaluation.status_for(rule, summary, as_of=as_of, words=words[rule.id])
-        out.append(Standing(person_id=person_id, name=name, roles=roles, rule_id=rule.id, rule_name=rule.name,
-                            status=status.status, current_until=status.current_until,
-                            qualifying_count=status.qualifying_count, needed=status.needed, remedy=status.remedy,
-                            warn_days=rule.warn_days))
+        out.append(_standing(person_id, (name, roles), rule, status))
+    out.sort(key=Standing.sort_key)
+    return out
+
+
+def kept_standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
+                   person_ids: Sequence[int] | None = None) -> list[Standing] | None:
+    """The standings from the kept rows; None when a row was written after as_of (its dates may be pruned)."""
+    if not rules:
+        return []
+    who = {pid: (name, roles) for pid, name, roles in kept.active_people(session, person_ids)}
+    by_id = {rule.id: rule for rule in rules}
+    types = rules_service.type_names(session)
+    words = {rule.id: rules_service.describe(rule, types) for rule in rules}
+    plain = {rule.id: (rule.id, rule.name, rule.warn_days) for rule in rules}
+    out, reread = [], []
+    statuses: dict[tuple, CurrencyStatus] = {}  # the same facts under the same rule: the same status, made once
+    day = kept.as_date
+    for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in kept.today_rows(
+            session, rule_ids=list(by_id), person_ids=person_ids):
+        counted_on, newest_on, current_until, through = day(counted_on), day(newest_on), day(current_until), day(through)
+        if counted_on > as_of:
+            return None
+        person = who.get(pilot_id)
+        if person is None:
+            continue  # not active: refresh removes such rows in the same transaction; verify reports one left
+        if not facts_hold_on(as_of, counted_on=counted_on, newest_on=newest_on, counted_through=through):
+            reread.append((pilot_id, rule_id))
+            continue
+        key = (rule_id, current_until, count, newest_on is not None, still)
+        status = statuses.get(key)
+        if status is None:
+            rule = by_id[rule_id]
+            status = statuses[key] = status_from_facts(
+                as_of=as_of, current_until=current_until, count_in_window=count, ever=newest_on is not None,
+                still_counting=still, min_count=rule.min_count, warn_days=rule.warn_days,
+                describe=words[rule_id][0], describe_one=words[rule_id][1])
+        out.append(_standing_of(pilot_id, person, plain[rule_id], status))
+    # A date left the window since the row was written, or a date ahead has come: count from its dates.
+    for (pilot_id, rule_id), dates in kept.dates_of(session, reread).items():
+        rule = by_id[rule_id]
+        status = evaluate_currency(dates, as_of=as_of, window_days=rule.window_days, window_months=rule.window_months,
+                                   min_count=rule.min_count, warn_days=rule.warn_days, describe=words[rule_id][0],
+                                   describe_one=words[rule_id][1])
+        out.append(_standing(pilot_id, who[pilot_id], rule, status))
     out.sort(key=Standing.sort_key)
     return out
 

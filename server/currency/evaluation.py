@@ -10,7 +10,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from datetime import date
 
-from sqlalchemy import and_, case, false, func, not_, or_, select, true
+from sqlalchemy import and_, bindparam, case, false, func, not_, or_, select, true
 from sqlalchemy.orm import Session
 
 from server.compute.currency import CurrencyStatus, status_from_summary, window_start
@@ -42,6 +42,10 @@ def counting_attempts_filter(as_of: date):
     return and_(counted_sorties_clause(), Attempt.takeover == false(), Attempt.flown_on <= as_of)
 
 
+RULE_CONDITION_FIELDS = ("maneuvers", "terminations", "type_ids", "with_instructor", "min_score",
+                         "require_satisfactory")
+
+
 def rule_condition(rule: CurrencyRule):
     """What one attempt must be to qualify under the rule (empty lists and None mean any)."""
     conditions = [true()]
@@ -66,10 +70,17 @@ def base_from(query):
         Aircraft, Aircraft.id == Sortie.aircraft_id)
 
 
-def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids: Iterable[int] | None = None):
-    """The one statement: rows of (pilot, day, per-rule count, running count, window count, total)."""
+def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids: Iterable[int] | None = None,
+                        for_keeping: bool = False):
+    """The one statement: rows of (pilot, day, per-rule count, running count, window count, total).
+
+    for_keeping (the board's kept state, `server/currency/kept.py`): days after as_of are read too, and
+    every qualifying day inside the window on as_of is kept, not only those of the newest attempts.
+    """
     per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
-    days = base_from(select(Attempt.pilot_id, Attempt.flown_on, *per_day)).where(counting_attempts_filter(as_of))
+    counting = (and_(counted_sorties_clause(), Attempt.takeover == false()) if for_keeping
+                else counting_attempts_filter(as_of))
+    days = base_from(select(Attempt.pilot_id, Attempt.flown_on, *per_day)).where(counting)
     if pilot_ids is not None:
         days = days.where(Attempt.pilot_id.in_(list(pilot_ids)))
     days = days.group_by(Attempt.pilot_id, Attempt.flown_on).subquery("days")
@@ -80,10 +91,11 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
     for i, rule in enumerate(rules):
         n = days.c[f"n{i}"]
         start = window_start(as_of, window_days=rule.window_days, window_months=rule.window_months)
+        # Qualifying attempts on this day or later (by as_of): this day's rank counted from the newest.
+        by_as_of = case((days.c.flown_on <= as_of, n), else_=0) if for_keeping else n
         columns += [
             n,
-            # Qualifying attempts on this day or later: this day's rank counted from the newest.
-            func.sum(n).over(**by_day, rows=(0, None)).label(f"run{i}"),
+            func.sum(by_as_of).over(**by_day, rows=(0, None)).label(f"run{i}"),
             func.sum(case((days.c.flown_on >= start, n), else_=0)).over(**by_day, rows=(None, None))
             .label(f"win{i}"),
             func.sum(n).over(**by_day, rows=(None, None)).label(f"tot{i}"),
@@ -94,7 +106,31 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
         and_(ranked.c[f"n{i}"] > 0, ranked.c[f"run{i}"] - ranked.c[f"n{i}"] < rule.min_count)
         for i, rule in enumerate(rules)
     ]
+    if for_keeping:
+        among_newest += [
+            and_(ranked.c[f"n{i}"] > 0, ranked.c.flown_on >= window_start(
+                as_of, window_days=rule.window_days, window_months=rule.window_months))
+            for i, rule in enumerate(rules)
+        ]
     return select(ranked).where(or_(false(), *among_newest))
+
+
+_SORTIE_DAYS: dict[tuple, object] = {}  # statements by the rules' content: built once, not per signature
+
+
+def sortie_days_statement(rules: Sequence[CurrencyRule]):
+    """Rows of (day, per-rule count) of the attempts of the sortie bound as `sortie_id` that can count (not
+    taken over): what a new signature adds to its pilot's kept state (`server/currency/kept.py`)."""
+    key = tuple((rule.id, *(repr(getattr(rule, name)) for name in RULE_CONDITION_FIELDS)) for rule in rules)
+    statement = _SORTIE_DAYS.get(key)
+    if statement is None:
+        per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]
+        statement = base_from(select(Attempt.flown_on, *per_day)).where(
+            Attempt.sortie_id == bindparam("sortie_id"), Attempt.takeover == false()).group_by(Attempt.flown_on)
+        if len(_SORTIE_DAYS) > 64:
+            _SORTIE_DAYS.clear()
+        _SORTIE_DAYS[key] = statement
+    return statement
 
 
 def summaries(session: Session, *, rules: Sequence[CurrencyRule], as_of: date,

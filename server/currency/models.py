@@ -1,7 +1,7 @@
-"""Tables for currency rules and calendar feed links."""
-from datetime import datetime
+"""Tables for currency rules, calendar feed links and the readiness board's kept state."""
+from datetime import date, datetime
 
-from sqlalchemy import JSON, Boolean, Float, ForeignKey, Integer, String
+from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Integer, String
 from sqlalchemy.orm import Mapped, mapped_column
 
 from server.db import Base
@@ -42,3 +42,25 @@ class CalendarFeed(Base):
     token_sha256: Mapped[str] = mapped_column(String(64), unique=True)
     created_at: Mapped[datetime] = mapped_column(UTCDateTime, default=utcnow)
     revoked_at: Mapped[datetime | None] = mapped_column(UTCDateTime)
+
+
+class KeptStanding(Base):
+    """The readiness board's kept state: one row per active person and active rule that applies to them.
+
+    Written in the same transaction as every change that can move it (`server/currency/kept.py`);
+    the board for today reads these rows instead of the whole history. The facts are those of
+    `server.compute.currency.kept_facts`, computed on `counted_on`.
+    """
+
+    __tablename__ = "currency_kept_standings"
+
+    pilot_id: Mapped[int] = mapped_column(ForeignKey("people.id", ondelete="CASCADE"), primary_key=True)
+    rule_id: Mapped[int] = mapped_column(ForeignKey("currency_rules.id", ondelete="CASCADE"), primary_key=True,
+                                         index=True)
+    counted_on: Mapped[date] = mapped_column(Date)
+    dates: Mapped[list] = mapped_column(JSON, default=list)  # ISO dates, newest first, repeats kept
+    newest_on: Mapped[date | None] = mapped_column(Date)
+    current_until: Mapped[date | None] = mapped_column(Date)
+    still_counting: Mapped[int] = mapped_column(Integer, default=0)
+    window_count: Mapped[int] = mapped_column(Integer, default=0)
+    counted_through: Mapped[date | None] = mapped_column(Date)

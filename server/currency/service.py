@@ -17,6 +17,13 @@ _MANEUVER_WORDS = {"straight_in": "straight-in", "turn_180": "180° turn", "turn
                    "hovering": "hovering"}
 
 
+def _kept_state_follows(session: Session, rule_id: int) -> None:
+    """The readiness board's kept rows of this rule, rewritten in the rule change's transaction."""
+    from server.currency import kept  # kept reads the rules through this module: imported when called
+
+    kept.after_rule_change(session, rule_id)
+
+
 def require_chief(actor: Person) -> None:
     """Rules are setup: chief pilots and administrators keep them (DESIGN section 5)."""
     if not actor.has_role("chief_pilot", "admin"):
@@ -70,6 +77,7 @@ def create_rule(session: Session, *, actor: Person, data: RuleCreate) -> Currenc
     session.flush()
     audit.append(session, actor_id=actor.id, action="create", entity="currency_rule", entity_id=rule.id,
                  after=rule_values(rule))
+    _kept_state_follows(session, rule.id)
     return rule
 
 
@@ -97,6 +105,7 @@ def update_rule(session: Session, *, actor: Person, rule: CurrencyRule, data: Ru
     session.flush()
     audit.append(session, actor_id=actor.id, action="edit", entity="currency_rule", entity_id=rule.id,
                  before=before, after=rule_values(rule))
+    _kept_state_follows(session, rule.id)
     return rule
 
 
@@ -104,6 +113,8 @@ def delete_rule(session: Session, *, actor: Person, rule: CurrencyRule) -> None:
     """Remove a rule from the board; the audit chain keeps what it said."""
     require_chief(actor)
     before, rule_id = rule_values(rule), rule.id
+    rule.active = False  # out of list_rules, so its kept rows go before the rule does
+    _kept_state_follows(session, rule_id)
     session.delete(rule)
     session.flush()
     audit.append(session, actor_id=actor.id, action="delete", entity="currency_rule", entity_id=rule_id,

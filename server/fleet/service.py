@@ -5,11 +5,14 @@ from sqlalchemy.orm import Session
 
 from server.compute.hv import in_avoid_region
 from server.errors import Conflict, Invalid, NotFound
+from server.fleet import hooks
 from server.fleet.hvchart import Entry
 from server.fleet.models import Aircraft, HelicopterType, Site
 from server.fleet.schemas import AircraftCreate, SiteCreate, TypeCreate, TypeUpdate
 from server.people.models import Person
 from server.records import audit
+
+AUDIT_ENTITY = {Aircraft: "aircraft", Site: "site"}  # what the audit chain calls each kind of row
 
 
 def list_types(session: Session) -> list[HelicopterType]:
@@ -154,16 +157,8 @@ def update_aircraft(session: Session, *, row: Aircraft, data: AircraftCreate, ac
     session.refresh(row)  # the joined type follows the new type_id
     audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
                  before=before, after={"registration": registration, "type_id": data.type_id})
-    return row
-
-
-def set_aircraft_active(session: Session, *, row: Aircraft, active: bool, actor: Person) -> Aircraft:
-    """Take an aircraft out of use (or back): new sorties no longer offer it; its records stay."""
-    if row.active != active:
-        row.active = active
-        session.flush()
-        audit.append(session, actor_id=actor.id, action="edit", entity="aircraft", entity_id=row.id,
-                     before={"active": not active}, after={"active": active})
+    if before["type_id"] != data.type_id:
+        hooks.aircraft_retyped(session, row)
     return row
 
 
@@ -186,11 +181,11 @@ def update_site(session: Session, *, row: Site, data: SiteCreate, actor: Person)
     return row
 
 
-def set_site_active(session: Session, *, row: Site, active: bool, actor: Person) -> Site:
-    """Take a site out of use (or back): new sorties no longer offer it; its records stay."""
+def set_active(session: Session, *, row: Aircraft | Site, active: bool, actor: Person) -> Aircraft | Site:
+    """Take an aircraft or a site out of use (or back): new sorties no longer offer it; its records stay."""
     if row.active != active:
         row.active = active
         session.flush()
-        audit.append(session, actor_id=actor.id, action="edit", entity="site", entity_id=row.id,
+        audit.append(session, actor_id=actor.id, action="edit", entity=AUDIT_ENTITY[type(row)], entity_id=row.id,
                      before={"active": not active}, after={"active": active})
     return row

@@ -19,16 +19,23 @@ AIM_FIELDS = tuple(name for name in ("aim_lat_deg", "aim_lon_deg") if name in Si
 SITE_NAMES = ("name", "elevation_ft", "landing_dirs_deg", *AIM_FIELDS)
 
 
-def _saved_or_again(request: Request, save, again, data, message):
-    """Save valid data and go back to the list; otherwise show the form again with the reason."""
+def _saved_or_again(request: Request, save, again, data, message, back: str):
+    """Save valid data and go back to the list named `back`; otherwise show the form again with the reason."""
     if data is not None:
         try:
             save(data)
         except FlarebookError as error:
             message = error.message
         else:
-            return None
+            return RedirectResponse(request.url_for(back), status_code=303)
     return again(message or "Some entries need a look: see the marked fields.")
+
+
+def _in_use(request: Request, db, person, row, back: str):
+    """Take the row out of use, or back into use, as the route's name says; then go back to the list."""
+    active = request.scope["route"].name.endswith("_reactivate")
+    fleet.set_active(db, row=row, active=active, actor=person)
+    return RedirectResponse(request.url_for(back), status_code=303)
 
 
 # ---- aircraft -----------------------------------------------------------------------------------
@@ -61,10 +68,10 @@ async def _aircraft_submitted(request: Request):
 @router.post("/setup/aircraft/new", name="aircraft_create")
 async def aircraft_create(request: Request, db: DbSession, person: SetupUser):
     values, data, errors, message = await _aircraft_submitted(request)
-    again = _saved_or_again(
+    return _saved_or_again(
         request, lambda d: fleet.create_aircraft(db, data=d, actor=person),
-        lambda text: _aircraft_form(request, db, person, None, values, errors, text, status=422), data, message)
-    return again or RedirectResponse(request.url_for("aircraft_list"), status_code=303)
+        lambda text: _aircraft_form(request, db, person, None, values, errors, text, status=422),
+        data, message, "aircraft_list")
 
 
 @router.get("/setup/aircraft/{aircraft_id}/edit", name="aircraft_edit")
@@ -78,23 +85,17 @@ def aircraft_edit(aircraft_id: int, request: Request, db: DbSession, person: Set
 async def aircraft_update(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
     row = fleet.get_aircraft(db, aircraft_id)
     values, data, errors, message = await _aircraft_submitted(request)
-    again = _saved_or_again(
+    return _saved_or_again(
         request, lambda d: fleet.update_aircraft(db, row=row, data=d, actor=person),
-        lambda text: _aircraft_form(request, db, person, row, values, errors, text, status=422), data, message)
-    return again or RedirectResponse(request.url_for("aircraft_list"), status_code=303)
+        lambda text: _aircraft_form(request, db, person, row, values, errors, text, status=422),
+        data, message, "aircraft_list")
 
 
 @router.post("/setup/aircraft/{aircraft_id}/deactivate", name="aircraft_deactivate")
-def aircraft_deactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
-    """New sorties no longer offer it; every record flown in it stays."""
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=False, actor=person)
-    return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
-
-
 @router.post("/setup/aircraft/{aircraft_id}/reactivate", name="aircraft_reactivate")
-def aircraft_reactivate(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_aircraft_active(db, row=fleet.get_aircraft(db, aircraft_id), active=True, actor=person)
-    return RedirectResponse(request.url_for("aircraft_list"), status_code=303)
+def aircraft_in_use(aircraft_id: int, request: Request, db: DbSession, person: SetupUser):
+    """Out of use, new sorties no longer offer it; every record flown in it stays."""
+    return _in_use(request, db, person, fleet.get_aircraft(db, aircraft_id), "aircraft_list")
 
 
 # ---- sites --------------------------------------------------------------------------------------
@@ -154,10 +155,10 @@ async def _site_submitted(request: Request):
 @router.post("/setup/sites/new", name="site_create")
 async def site_create(request: Request, db: DbSession, person: SetupUser):
     shown, data, errors, message = await _site_submitted(request)
-    again = _saved_or_again(
+    return _saved_or_again(
         request, lambda d: fleet.create_site(db, data=d, actor=person),
-        lambda text: _site_form(request, person, None, shown, errors, text, status=422), data, message)
-    return again or RedirectResponse(request.url_for("site_list"), status_code=303)
+        lambda text: _site_form(request, person, None, shown, errors, text, status=422),
+        data, message, "site_list")
 
 
 @router.get("/setup/sites/{site_id}/edit", name="site_edit")
@@ -172,20 +173,14 @@ def site_edit(site_id: int, request: Request, db: DbSession, person: SetupUser):
 async def site_update(site_id: int, request: Request, db: DbSession, person: SetupUser):
     row = fleet.get_site(db, site_id)
     shown, data, errors, message = await _site_submitted(request)
-    again = _saved_or_again(
+    return _saved_or_again(
         request, lambda d: fleet.update_site(db, row=row, data=d, actor=person),
-        lambda text: _site_form(request, person, row, shown, errors, text, status=422), data, message)
-    return again or RedirectResponse(request.url_for("site_list"), status_code=303)
+        lambda text: _site_form(request, person, row, shown, errors, text, status=422),
+        data, message, "site_list")
 
 
 @router.post("/setup/sites/{site_id}/deactivate", name="site_deactivate")
-def site_deactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
-    """New sorties no longer offer it; every record flown there stays."""
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=False, actor=person)
-    return RedirectResponse(request.url_for("site_list"), status_code=303)
-
-
 @router.post("/setup/sites/{site_id}/reactivate", name="site_reactivate")
-def site_reactivate(site_id: int, request: Request, db: DbSession, person: SetupUser):
-    fleet.set_site_active(db, row=fleet.get_site(db, site_id), active=True, actor=person)
-    return RedirectResponse(request.url_for("site_list"), status_code=303)
+def site_in_use(site_id: int, request: Request, db: DbSession, person: SetupUser):
+    """Out of use, new sorties no longer offer it; every record flown there stays."""
+    return _in_use(request, db, person, fleet.get_site(db, site_id), "site_list")

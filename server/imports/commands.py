@@ -6,7 +6,7 @@ from pathlib import Path
 from sqlalchemy import select
 
 from server.config import get_settings
-from server.db import make_engine, make_session_factory, transaction
+from server.db import command_session
 from server.errors import FlarebookError
 from server.imports import columns, service
 from server.people import service as people
@@ -57,19 +57,15 @@ def cmd_import(args) -> str:
         data = Path(args.file).read_bytes()
     except OSError as error:
         raise FlarebookError(f"cannot read {args.file}: {error.strerror}") from None
-    engine = make_engine(get_settings().database_url)
-    try:
-        with transaction(make_session_factory(engine)) as session:
-            outcome = service.run_import(session, actor=_importer(session, args.by), kind=args.kind, data=data,
-                                         file_name=Path(args.file).name, mapping=mapping, dry_run=args.dry_run,
-                                         only_clean=args.only_clean)
-            text = report(outcome)
-            if outcome.refused or (outcome.dry_run and outcome.errors):
-                print(text, flush=True)  # the rows and their problems; the one-line reason goes to stderr
-                raise FlarebookError(outcome.refused or f"{len(outcome.errors)} problems in the file; nothing was created.")
-            return text
-    finally:
-        engine.dispose()
+    with command_session(get_settings().database_url) as session:
+        outcome = service.run_import(session, actor=_importer(session, args.by), kind=args.kind, data=data,
+                                     file_name=Path(args.file).name, mapping=mapping, dry_run=args.dry_run,
+                                     only_clean=args.only_clean)
+        text = report(outcome)
+        if outcome.refused or (outcome.dry_run and outcome.errors):
+            print(text, flush=True)  # the rows and their problems; the one-line reason goes to stderr
+            raise FlarebookError(outcome.refused or f"{len(outcome.errors)} problems in the file; nothing was created.")
+        return text
 
 
 def add_commands(sub: argparse._SubParsersAction) -> None:

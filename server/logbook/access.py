@@ -1,12 +1,13 @@
 """Who may see whom: students see themselves, instructors the pilots they teach, chief pilots everyone.
 
 "The pilots an instructor teaches" follow the school's assignments: an active enrolment with that
-instructor as the usual instructor. A sortie flown together does not count (an instructor could
+instructor as the usual instructor, or as the check instructor a chief pilot assigned to sign the
+student's stage checks (who must see the records they check). A sortie flown together does not count (an instructor could
 otherwise give themselves any pilot's records with an empty sortie); the sortie itself stays
 visible to its assigned instructor (logbook.service.may_view), which is how a chief pilot's
 assignment of one sortie works.
 """
-from sqlalchemy import select
+from sqlalchemy import or_, select
 from sqlalchemy.orm import Session
 
 from server.people.models import Person
@@ -14,9 +15,9 @@ from server.training.models import Enrolment
 
 
 def student_ids_of(session: Session, instructor_id: int) -> set[int]:
-    """Pilots an instructor teaches: actively enrolled with them as their usual instructor."""
-    return set(session.scalars(select(Enrolment.student_id).where(Enrolment.instructor_id == instructor_id,
-                                                                  Enrolment.active.is_(True))))
+    """Pilots an instructor teaches or checks: actively enrolled with them as usual or check instructor."""
+    assigned = or_(Enrolment.instructor_id == instructor_id, Enrolment.check_instructor_id == instructor_id)
+    return set(session.scalars(select(Enrolment.student_id).where(assigned, Enrolment.active.is_(True))))
 
 
 def can_view_pilot(session: Session, *, viewer: Person, pilot_id: int) -> bool:

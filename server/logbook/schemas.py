@@ -8,8 +8,8 @@ from typing import Literal
 
 from pydantic import AwareDatetime, BaseModel, ConfigDict, Field, field_validator, model_validator
 
+from server.compute.wind import MAX_WIND_KT
 from server.input_rules import StrictInput
-
 from server.vocabulary import Maneuver, Termination
 
 Grade = Literal["satisfactory", "unsatisfactory"]
@@ -23,8 +23,9 @@ class ConditionsFields(StrictInput):
     # 25.11 to 32.48 inHg stays inside 850 to 1100 hPa once converted (25.1 inHg is 849.98 hPa).
     altimeter_inhg: float | None = Field(default=None, ge=25.11, le=32.48)
     wind_dir_deg: float | None = Field(default=None, ge=0, le=360)
-    wind_kt: float | None = Field(default=None, ge=0, le=150)
-    gust_kt: float | None = Field(default=None, ge=0, le=200)
+    # The same ceiling as the wind computation, so a figure the form takes can always be computed.
+    wind_kt: float | None = Field(default=None, ge=0, le=MAX_WIND_KT)
+    gust_kt: float | None = Field(default=None, ge=0, le=MAX_WIND_KT)
     metar: str | None = Field(default=None, max_length=500)
 
     @model_validator(mode="after")

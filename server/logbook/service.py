@@ -11,7 +11,7 @@ from server.config import settings_of
 from server.db import take_writers_turn
 from server.errors import Conflict, Forbidden, Invalid, NotFound
 from server.fleet.models import Aircraft, Site
-from server.logbook import access, derive
+from server.logbook import access, derive, hooks
 from server.logbook.models import Attempt, MEANINGS, Signature, Sortie
 from server.logbook.schemas import (
     KG_PER_LB,
@@ -408,8 +408,11 @@ def record_instructor_signature(session: Session, *, actor: Person, sortie: Sort
     return record_signature(session, actor=actor, sortie=sortie, meaning="instructor_certifies")
 
 
-def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning: str) -> Signature:
-    """Seal a draft with a signature that means one of MEANINGS; callers have checked who signs and how."""
+def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning: str,
+                     tell_others: bool = True) -> Signature:
+    """Seal a draft with a signature that means one of MEANINGS; callers have checked who signs and how.
+
+    tell_others=False leaves `hooks.sorties_signed` to a caller that signs many sorties and tells once."""
     _hold_draft(session, sortie)  # an attempt being logged meanwhile is committed first, or refused after
     session.expire(sortie, ["attempts"])  # so the signed content holds every attempt committed before
     if not sortie.attempts:
@@ -423,6 +426,8 @@ def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning
     audit.append(session, actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
                  after={"content_sha256": signature.content_sha256, "meaning": signature.meaning,
                         "record": sortie_record(sortie)})
+    if tell_others:
+        hooks.sorties_signed(session, [sortie])
     return signature
 
 

@@ -12,7 +12,7 @@ from sqlalchemy.orm import Session
 
 from server.errors import Forbidden
 from server.fleet.models import Aircraft, Site
-from server.logbook import derive
+from server.logbook import derive, hooks
 from server.logbook import service as logbook
 from server.logbook.models import Attempt, Sortie
 from server.logbook.schemas import AttemptFields, SortieCreate
@@ -71,5 +71,6 @@ def create_transcribed(session: Session, *, actor: Person, sorties: list[Transcr
     for sortie in built:
         audit.append(session, actor_id=actor.id, action="create", entity="sortie", entity_id=sortie.id,
                      after=logbook.sortie_record(sortie), reason=reason)
-        logbook.record_signature(session, actor=actor, sortie=sortie, meaning=TRANSCRIBED)
+        logbook.record_signature(session, actor=actor, sortie=sortie, meaning=TRANSCRIBED, tell_others=False)
+    hooks.sorties_signed(session, built)  # once for the whole file, not once per sortie
     return built

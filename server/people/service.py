@@ -10,6 +10,7 @@ from server.config import Settings, settings_of
 from server.errors import Conflict, Forbidden, Invalid, NotFound, Unauthorized
 from server.people.models import ApiToken, Person, PersonRole, School, SignInFailure, UserSession
 from server.people.security import hash_password, new_secret, sha256_hex, verify_password
+from server.people import hooks
 from server.records import audit
 from server.types import utcnow
 from server.vocabulary import ROLES
@@ -55,6 +56,7 @@ def create_person(session: Session, *, name: str, email: str, roles: list[str], 
     session.flush()
     audit.append(session, actor_id=actor.id if actor else None, action="create", entity="person", entity_id=person.id,
                  after={"name": person.name, "email": person.email, "roles": person.roles})
+    hooks.person_changed(session, person)
     return person
 
 
@@ -81,6 +83,8 @@ def update_person(session: Session, *, person: Person, actor: Person, name: str 
     if before != person_snapshot(person):
         audit.append(session, actor_id=actor.id, action="edit", entity="person", entity_id=person.id,
                      before=before, after=person_snapshot(person))
+    if (before["roles"], before["active"]) != (person.roles, person.active):
+        hooks.person_changed(session, person)
     if password is not None:
         reset_password(session, actor=actor, person=person, temporary=password)
     return person

@@ -78,8 +78,8 @@ def confirm_lesson(enrolment_id: int, lesson_id: int, db: DbSession, person: Api
 
 @router.post("/enrolments/{enrolment_id}/stage-checks", response_model=StageCheckRead, status_code=201)
 def sign_stage_check(enrolment_id: int, data: StageCheckCreate, db: DbSession, person: ApiUser):
-    """A chief pilot or a check instructor (not the usual instructor) signs a stage check."""
-    enrolment = programs.enrolment_for_check(db, enrolment_id=enrolment_id, actor=person)
+    """A chief pilot or the enrolment's assigned check instructor signs a stage check."""
+    enrolment = programs.get_enrolment(db, enrolment_id=enrolment_id, viewer=person)
     return check_read(programs.sign_stage_check(db, actor=person, enrolment=enrolment, stage_id=data.stage_id,
                                                 passed=data.passed, remarks=data.remarks,
                                                 password=data.password))

@@ -229,8 +229,8 @@ def lesson_confirm(enrolment_id: int, lesson_id: int, request: Request, db: DbSe
 
 @router.post("/enrolments/{enrolment_id}/stage-check", name="stage_check_sign")
 async def stage_check_sign(enrolment_id: int, request: Request, db: DbSession, person: PageUser):
-    """A chief pilot or a check instructor signs a stage check from the progress file."""
-    enrolment = progress.enrolment_for_check(db, enrolment_id=enrolment_id, actor=person)
+    """A chief pilot or the assigned check instructor signs a stage check from the progress file."""
+    enrolment = progress.get_enrolment(db, enrolment_id=enrolment_id, viewer=person)
     form = await request.form()
     try:
         stage_id = int(str(form.get("stage_id", "")))

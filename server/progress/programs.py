@@ -35,15 +35,6 @@ def get_enrolment(session: Session, *, enrolment_id: int, viewer: Person) -> Enr
     return enrolment
 
 
-def enrolment_for_check(session: Session, *, enrolment_id: int, actor: Person) -> Enrolment:
-    """Any instructor may be asked to act as check instructor, so any instructor may find the enrolment."""
-    enrolment = session.get(Enrolment, enrolment_id)
-    if enrolment is None or not (actor.has_role("instructor", "chief_pilot")
-                                 or access.can_view_pilot(session, viewer=actor, pilot_id=enrolment.student_id)):
-        raise NotFound("No such enrolment.")
-    return enrolment
-
-
 # ---- progress through the syllabus -------------------------------------------------------------
 
 @dataclass
@@ -215,10 +206,11 @@ def confirm_lesson(session: Session, *, actor: Person, enrolment: Enrolment, les
 
 
 def may_check(actor: Person, enrolment: Enrolment) -> bool:
-    """A chief pilot, or an instructor who is not the student's usual instructor (nor the student)."""
+    """A chief pilot, or the check instructor assigned to the enrolment (never the student themselves)."""
     if actor.id == enrolment.student_id:
         return False
-    return actor.has_role("chief_pilot") or (actor.has_role("instructor") and actor.id != enrolment.instructor_id)
+    return actor.has_role("chief_pilot") or (actor.has_role("instructor")
+                                             and actor.id == enrolment.check_instructor_id)
 
 
 def sign_stage_check(session: Session, *, actor: Person, enrolment: Enrolment, stage_id: int, passed: bool,
@@ -228,9 +220,9 @@ def sign_stage_check(session: Session, *, actor: Person, enrolment: Enrolment, s
         usual = session.get(Person, enrolment.instructor_id) if enrolment.instructor_id else None
         if usual is not None and actor.id == usual.id:
             raise Forbidden("You are this student's usual instructor: a stage check is signed by a chief pilot "
-                            "or by another instructor acting as check instructor.")
-        raise Forbidden("A stage check is signed by a chief pilot or by a check instructor who is not the "
-                        "student's usual instructor.")
+                            "or by the check instructor a chief pilot assigned.")
+        raise Forbidden("A stage check is signed by a chief pilot or by the check instructor a chief pilot "
+                        "assigned to this student's enrolment.")
     program = session.get(Program, enrolment.program_id)
     stage = next((s for s in program.stages if s.id == stage_id), None)
     if stage is None:

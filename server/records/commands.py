@@ -5,7 +5,7 @@ import tempfile
 from pathlib import Path
 
 from server.config import get_settings
-from server.db import make_engine, make_session_factory
+from server.db import command_session
 from server.errors import FlarebookError
 from server.migrate import upgrade
 from server.records import audit, backup, proof
@@ -17,12 +17,8 @@ SHOWN_PROBLEMS = 20
 
 def _read(fn):
     """Run fn(session) on the configured database, read-only."""
-    engine = make_engine(get_settings().database_url)
-    try:
-        with make_session_factory(engine)() as session:
-            return fn(session)
-    finally:
-        engine.dispose()
+    with command_session(get_settings().database_url, writing=False) as session:
+        return fn(session)
 
 
 def _write_file(path: Path, text: str) -> None:

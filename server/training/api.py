@@ -5,14 +5,18 @@ from server.deps import DbSession
 from server.people.deps import ApiUser
 from server.training import programs
 from server.training.models import Enrolment
-from server.training.program_schemas import EnrolmentCreate, EnrolmentRead, ProgramRead, ProgramWrite
+from server.errors import NotFound
+from server.training.program_schemas import (
+    CheckInstructorAssign, EnrolmentCreate, EnrolmentRead, ProgramRead, ProgramWrite,
+)
 
 router = APIRouter(tags=["training"])
 
 
 def enrolment_read(enrolment: Enrolment) -> EnrolmentRead:
     return EnrolmentRead(id=enrolment.id, program_id=enrolment.program_id, student_id=enrolment.student_id,
-                         instructor_id=enrolment.instructor_id, started_on=enrolment.started_on,
+                         instructor_id=enrolment.instructor_id, check_instructor_id=enrolment.check_instructor_id,
+                         started_on=enrolment.started_on,
                          active=enrolment.active)
 
 
@@ -45,3 +49,13 @@ def enrol(program_id: int, data: EnrolmentCreate, db: DbSession, person: ApiUser
     """Enrol a student with their usual instructor."""
     program = programs.get_program(db, program_id)
     return enrolment_read(programs.enrol(db, actor=person, program=program, data=data))
+
+
+@router.put("/enrolments/{enrolment_id}/check-instructor", response_model=EnrolmentRead)
+def assign_check_instructor(enrolment_id: int, data: CheckInstructorAssign, db: DbSession, person: ApiUser):
+    """A chief pilot names the instructor who signs this student's stage checks (null: none)."""
+    enrolment = db.get(Enrolment, enrolment_id)
+    if enrolment is None:
+        raise NotFound("No such enrolment.")
+    return enrolment_read(programs.assign_check_instructor(db, actor=person, enrolment=enrolment,
+                                                           check_instructor_id=data.check_instructor_id))

@@ -96,6 +96,8 @@ class Enrolment(Base):
     program_id: Mapped[int] = mapped_column(ForeignKey("programs.id"), index=True)
     student_id: Mapped[int] = mapped_column(ForeignKey("people.id"), index=True)
     instructor_id: Mapped[int | None] = mapped_column(ForeignKey("people.id"), index=True)  # usual instructor
+    # The instructor a chief pilot assigned to sign this student's stage checks; they see the student's records.
+    check_instructor_id: Mapped[int | None] = mapped_column(ForeignKey("people.id"), index=True, default=None)
     started_on: Mapped[date] = mapped_column(Date)
     active: Mapped[bool] = mapped_column(Boolean, default=True)
 
@@ -111,7 +113,7 @@ class LessonCompletion(Base):
 
 
 class StageCheck(Base):
-    """A stage check, signed by a chief pilot or a check instructor other than the usual instructor."""
+    """A stage check, signed by a chief pilot or the enrolment's assigned check instructor."""
 
     __tablename__ = "stage_checks"
 

@@ -8,7 +8,7 @@ from pydantic import ValidationError
 from sqlalchemy import select
 
 from server.deps import DbSession
-from server.errors import FlarebookError, Invalid
+from server.errors import FlarebookError, Invalid, NotFound
 from server.people import service as people
 from server.people.deps import SetupUser
 from server.people.models import Person
@@ -140,6 +140,7 @@ async def person_enrol(person_id: int, request: Request, db: DbSession, person: 
     target = people.get_person(db, person_id)
     form = await request.form()
     values = {"student_id": target.id, "instructor_id": form.get("instructor_id") or None,
+              "check_instructor_id": form.get("check_instructor_id") or None,
               "started_on": form.get("started_on") or None}
     try:
         program = programs.get_program(db, int(form.get("program_id") or 0))
@@ -150,6 +151,32 @@ async def person_enrol(person_id: int, request: Request, db: DbSession, person: 
         message, status = error.message, error.status_code
     except ValueError:
         message, status = "Choose a program.", 422
+    else:
+        return RedirectResponse(request.url_for("person_page", person_id=target.id), status_code=303)
+    db.rollback()
+    target = people.get_person(db, person_id)
+    return render(request, "people/setup_person.html", {**_person_context(db, person, target), "message": message},
+                  status_code=status)
+
+
+@router.post("/setup/people/{person_id}/enrolments/{enrolment_id}/check-instructor",
+             name="enrolment_check_instructor")
+async def enrolment_check_instructor(person_id: int, enrolment_id: int, request: Request, db: DbSession,
+                                     person: SetupUser):
+    """Name the instructor who signs this student's stage checks (and so may see their records)."""
+    target = people.get_person(db, person_id)
+    enrolment = db.get(Enrolment, enrolment_id)
+    if enrolment is None or enrolment.student_id != target.id:
+        raise NotFound("No such enrolment.")
+    form = await request.form()
+    try:
+        checker = str(form.get("check_instructor_id") or "")
+        programs.assign_check_instructor(db, actor=person, enrolment=enrolment,
+                                         check_instructor_id=int(checker) if checker else None)
+    except ValueError:
+        message, status = "Choose an instructor from the list.", 422
+    except FlarebookError as error:
+        message, status = error.message, error.status_code
     else:
         return RedirectResponse(request.url_for("person_page", person_id=target.id), status_code=303)
     db.rollback()

@@ -80,7 +80,14 @@ class EnrolmentCreate(BaseModel):
     model_config = ConfigDict(extra="forbid")
     student_id: int
     instructor_id: int | None = Field(default=None, description="the student's usual instructor")
+    check_instructor_id: int | None = Field(
+        default=None, description="the instructor who signs this student's stage checks (not the usual one)")
     started_on: date
+
+
+class CheckInstructorAssign(BaseModel):
+    model_config = ConfigDict(extra="forbid")
+    check_instructor_id: int | None = Field(description="the instructor who signs stage checks; null: none assigned")
 
 
 class EnrolmentRead(BaseModel):
@@ -88,5 +95,6 @@ class EnrolmentRead(BaseModel):
     program_id: int
     student_id: int
     instructor_id: int | None
+    check_instructor_id: int | None = None
     started_on: date
     active: bool

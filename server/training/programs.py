@@ -172,6 +172,21 @@ def _refuse_if_signed_off(session: Session, lesson: Lesson) -> None:
 
 # ---- enrolment ---------------------------------------------------------------------------------
 
+def _check_instructor(session: Session, *, check_instructor_id: int | None, student_id: int,
+                      usual_instructor_id: int | None) -> None:
+    """A check instructor is an active instructor other than the student and their usual instructor."""
+    if check_instructor_id is None:
+        return
+    checker = session.get(Person, check_instructor_id)
+    if checker is None or not checker.active or not checker.has_role("instructor"):
+        raise Invalid("check_instructor_id does not name an active instructor.")
+    if checker.id == student_id:
+        raise Invalid("A student cannot check themselves.")
+    if checker.id == usual_instructor_id:
+        raise Invalid("The check instructor is someone other than the student's usual instructor: "
+                      "a stage check is a second pair of eyes.")
+
+
 def enrol(session: Session, *, actor: Person, program: Program, data: EnrolmentCreate) -> Enrolment:
     """Enrol a student with their usual instructor; an earlier active enrolment ends."""
     _require_setup(actor)
@@ -184,16 +199,35 @@ def enrol(session: Session, *, actor: Person, program: Program, data: EnrolmentC
             raise Invalid("instructor_id does not name an instructor.")
         if instructor.id == student.id:
             raise Invalid("A student cannot be their own usual instructor.")
+    _check_instructor(session, check_instructor_id=data.check_instructor_id, student_id=student.id,
+                      usual_instructor_id=data.instructor_id)
     for earlier in session.scalars(select(Enrolment).where(Enrolment.student_id == student.id,
                                                            Enrolment.active.is_(True))):
         earlier.active = False
     enrolment = Enrolment(program_id=program.id, student_id=student.id, instructor_id=data.instructor_id,
-                          started_on=data.started_on, active=True)
+                          check_instructor_id=data.check_instructor_id, started_on=data.started_on, active=True)
     session.add(enrolment)
     session.flush()
     audit.append(session, actor_id=actor.id, action="create", entity="enrolment", entity_id=enrolment.id,
                  after={"program_id": program.id, "student_id": student.id, "instructor_id": data.instructor_id,
+                        "check_instructor_id": data.check_instructor_id,
                         "started_on": data.started_on.isoformat()})
+    return enrolment
+
+
+def assign_check_instructor(session: Session, *, actor: Person, enrolment: Enrolment,
+                            check_instructor_id: int | None) -> Enrolment:
+    """A chief pilot names (or clears) the instructor who signs this enrolment's stage checks."""
+    _require_setup(actor)
+    if not enrolment.active:
+        raise Conflict("This enrolment has ended; assign a check instructor on the student's active enrolment.")
+    _check_instructor(session, check_instructor_id=check_instructor_id, student_id=enrolment.student_id,
+                      usual_instructor_id=enrolment.instructor_id)
+    before = enrolment.check_instructor_id
+    enrolment.check_instructor_id = check_instructor_id
+    session.flush()
+    audit.append(session, actor_id=actor.id, action="update", entity="enrolment", entity_id=enrolment.id,
+                 before={"check_instructor_id": before}, after={"check_instructor_id": check_instructor_id})
     return enrolment
 
 

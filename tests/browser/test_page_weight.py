@@ -8,7 +8,8 @@ from server.config import PROJECT_ROOT
 from server.logbook import service as logbook
 from server.logbook.schemas import AttemptFields
 from server.people.models import Person
-from tests.browser.conftest import TABLET, sign_in
+from tests.browser.conftest import sign_in
+from tests.browser.fixtures import TABLET
 from tests.support import make_sortie
 
 pytestmark = pytest.mark.browser

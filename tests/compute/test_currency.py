@@ -12,7 +12,11 @@ from server.compute.currency import (
     STATUS_RANK,
     add_calendar_months_end,
     evaluate_currency,
+    facts_hold_on,
     format_date,
+    kept_dates,
+    kept_facts,
+    status_from_facts,
     status_from_summary,
     window_end,
     window_start,
@@ -321,3 +325,36 @@ def test_current_through_current_until_and_lapsed_the_day_after(qualifying, as_o
     assert on_last_day.status in ("current", "due_soon")
     day_after = evaluate_currency(flown, as_of=result.current_until + timedelta(days=1), **rule)
     assert day_after.status == "lapsed"
+
+
+@settings(max_examples=300, deadline=None)
+@given(
+    flown=st.lists(st.integers(min_value=-900, max_value=1), max_size=25),
+    later=st.integers(min_value=0, max_value=800),
+    window=st.one_of(st.tuples(st.integers(1, 400), st.none()), st.tuples(st.none(), st.integers(1, 24))),
+    min_count=st.integers(1, 5),
+    warn_days=st.integers(0, 45),
+)
+def test_kept_facts_decide_later_days_as_the_whole_history_does(flown, later, window, min_count, warn_days):
+    """The readiness board's kept facts, written on one day, give on any later day the standing that
+    the whole list of dates gives, whether they still hold alone or the kept dates are read again.
+    The count on a day is checked against the boundary read straight from the rule: an attempt on q
+    counts on every day from q through window_end(q) (pandas counts them)."""
+    written = date(2026, 12, 2)
+    day = written + timedelta(days=later)
+    dates = [written + timedelta(days=d) for d in flown]
+    rule = {"window_days": window[0], "window_months": window[1]}
+    facts = kept_facts(dates, as_of=written, min_count=min_count, **rule)
+    whole = evaluate_currency(dates, as_of=day, min_count=min_count, warn_days=warn_days, **rule)
+    series = pd.Series([q for q in dates if q <= day], dtype="object")
+    ends = series.map(lambda q: window_end(q, **rule))
+    assert whole.qualifying_count == int(((series <= day) & (ends >= day)).sum())
+    if facts_hold_on(day, counted_on=written, newest_on=facts.newest_on, counted_through=facts.counted_through):
+        shown = status_from_facts(as_of=day, current_until=facts.current_until, count_in_window=facts.window_count,
+                                  ever=facts.newest_on is not None, still_counting=facts.still_counting,
+                                  min_count=min_count, warn_days=warn_days)
+    else:
+        shown = evaluate_currency(facts.dates_desc, as_of=day, min_count=min_count, warn_days=warn_days, **rule)
+    assert shown == whole
+    # Pruning is stable: the kept dates kept again on the same day are the same dates.
+    assert kept_dates(facts.dates_desc, as_of=written, min_count=min_count, **rule) == facts.dates_desc

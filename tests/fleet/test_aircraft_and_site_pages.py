@@ -64,6 +64,8 @@ def test_a_site_with_landing_directions_is_added_edited_and_taken_out_of_use(chi
     assert (db.get(Site, site.id).elevation_ft, db.get(Site, site.id).landing_dirs_deg) == (1260, [180, 360])
     assert chief_client.form_post(f"/setup/sites/{site.id}/deactivate").status_code == 303
     assert "Heathfield pad (test) (1,260 ft)" not in _choices(parsed(chief_client.get("/sorties/new")), "site_id")
+    assert chief_client.form_post(f"/setup/sites/{site.id}/reactivate").status_code == 303
+    assert "Heathfield pad (test) (1,260 ft)" in _choices(parsed(chief_client.get("/sorties/new")), "site_id")
 
 
 def test_bad_site_entries_are_refused_field_by_field(chief_client, db, world):

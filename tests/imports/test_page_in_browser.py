@@ -11,19 +11,9 @@ from datetime import date, timedelta
 import pytest
 from playwright.sync_api import expect
 
-from tests.browser.conftest import (  # noqa: F401 (fixtures)
-    axe_path,
-    axe_violations,
-    base_url,
-    browser_context_args,
-    browser_type_launch_args,
-    chromium_path,
-    live_server,
-    sign_in,
-)
+from tests.browser.conftest import axe_violations, sign_in, watch
 from tests.imports.test_import_api import ATTEMPT_HEADER, attempt_row
 from tests.imports.test_reading import csv_bytes
-from tests.standardisation.test_page_in_browser import watch
 
 pytestmark = pytest.mark.browser
 SHOTS = os.environ.get("FLAREBOOK_SCREENSHOTS")

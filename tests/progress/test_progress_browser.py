@@ -4,16 +4,7 @@ import pytest
 from server.people.models import Person
 from server.training import programs
 from server.training.program_schemas import ProgramWrite
-from tests.browser.conftest import (  # noqa: F401  (fixtures shared with the browser tests)
-    axe_path,
-    axe_violations,
-    base_url,
-    browser_context_args,
-    browser_type_launch_args,
-    chromium_path,
-    live_server,
-    sign_in,
-)
+from tests.browser.conftest import axe_violations, sign_in
 from tests.progress.helpers import GOOD, POOR, fly, recently
 from tests.training.test_programs import SYLLABUS
 

@@ -9,14 +9,7 @@ from datetime import UTC, datetime
 import pytest
 from playwright.sync_api import expect
 
-from tests.browser.conftest import (  # noqa: F401 (fixtures)
-    base_url,
-    browser_context_args,
-    browser_type_launch_args,
-    chromium_path,
-    live_server,
-    sign_in,
-)
+from tests.browser.conftest import sign_in, watch
 from tests.safety.test_digest import FAST, LOW_RPM, flown
 
 pytestmark = pytest.mark.browser
@@ -25,13 +18,7 @@ pytestmark = pytest.mark.browser
 def test_the_chief_filters_the_digest_without_a_reload_and_nothing_is_blocked(page, db, world):
     flown(db, world, [LOW_RPM, FAST], when=datetime(2026, 11, 5, 9, tzinfo=UTC))
     flown(db, world, [FAST], when=datetime(2026, 10, 5, 9, tzinfo=UTC))
-    errors: list[str] = []
-    page.on("pageerror", lambda error: errors.append(f"page error: {error}"))
-    page.on("console", lambda msg: errors.append(f"{msg.text} ({msg.location.get('url')})")
-            if msg.type == "error" and not msg.location.get("url", "").endswith("/favicon.ico") else None)
-    page.add_init_script("window.cspViolations = [];"
-                         "document.addEventListener('securitypolicyviolation',"
-                         " e => window.cspViolations.push(e.violatedDirective + ' ' + e.blockedURI));")
+    errors = watch(page)
     sign_in(page, world.chief.email)
     page.get_by_role("link", name="Safety digest").click()
     page.wait_for_url("**/safety")

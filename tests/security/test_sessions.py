@@ -128,7 +128,7 @@ def test_disabling_a_person_ends_their_sessions_and_tokens(app, world, db, chief
     assert live == []
 
 
-def test_stored_password_hashes_are_argon2id_above_the_floor(db, world):
+def test_stored_password_hashes_are_argon2id_above_the_floor(production_password_hashes, db, world):
     stored = db.get(Person, world.student.id).password_hash
     parameters = argon2.extract_parameters(stored)
     assert parameters.type is argon2.Type.ID

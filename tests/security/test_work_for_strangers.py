@@ -10,6 +10,7 @@ import json
 import re
 import threading
 import time
+from concurrent.futures import ThreadPoolExecutor
 
 import pytest
 from fastapi.testclient import TestClient
@@ -52,7 +53,10 @@ def _asgi_post(app, path: str, *, content_length: int) -> tuple[int | None, int]
              "headers": [(b"host", b"testserver"), (b"content-type", b"application/json"),
                          (b"content-length", str(content_length).encode())],
              "client": ("127.0.0.1", 5000), "server": ("testserver", 80), "state": {}}
-    asyncio.run(app(scope, receive, send))
+    # A loop of its own in a thread of its own: a page test earlier in the run may have left
+    # Playwright's loop running in this thread, where asyncio.run refuses to start.
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        pool.submit(asyncio.run, app(scope, receive, send)).result()
     return status, asked
 
 

@@ -9,31 +9,11 @@ import os
 import pytest
 from playwright.sync_api import expect
 
-from tests.browser.conftest import (  # noqa: F401 (fixtures)
-    axe_path,
-    axe_violations,
-    base_url,
-    browser_context_args,
-    browser_type_launch_args,
-    chromium_path,
-    live_server,
-    sign_in,
-)
+from tests.browser.conftest import axe_violations, sign_in, watch
 from tests.standardisation.test_report import counts, scenario  # noqa: F401 (fixture)
 
 pytestmark = pytest.mark.browser
 SHOTS = os.environ.get("FLAREBOOK_SCREENSHOTS")  # a folder to keep screenshots in, for a person to look at
-
-
-def watch(page) -> list[str]:
-    errors: list[str] = []
-    page.on("pageerror", lambda error: errors.append(f"page error: {error}"))
-    page.on("console", lambda msg: errors.append(msg.text) if msg.type == "error"
-            and not msg.location.get("url", "").endswith("/favicon.ico") else None)
-    page.add_init_script("window.cspViolations = [];"
-                         "document.addEventListener('securitypolicyviolation',"
-                         " e => window.cspViolations.push(e.violatedDirective + ' ' + e.blockedURI));")
-    return errors
 
 
 def test_the_chief_reads_the_report_filters_it_and_opens_the_attempts_behind_a_bar(page, world, scenario):

@@ -80,13 +80,32 @@ def test_a_new_student_is_enrolled_from_their_page(chief_client, db, world):
     page = parsed(chief_client.get(f"/setup/people/{world.student.id}"))
     rows = cell_texts(page.find("section", attrs={"aria-labelledby": "enrol-h"}).find("table"))
     # The new enrolment is active; the test school's own enrolment of the student has ended.
-    assert ["Private syllabus (test)", "Ivo Instructor", "02 Nov 2026", "Active"] in rows
-    assert all(row[3] == "Ended" for row in rows if row[0] != "Private syllabus (test)")
+    without_check_column = [row[:2] + row[3:] for row in rows]
+    assert ["Private syllabus (test)", "Ivo Instructor", "02 Nov 2026", "Active"] in without_check_column
+    assert all(row[4] == "Ended" for row in rows if row[0] != "Private syllabus (test)")
     # A program that does not exist is refused with a reason, and nothing changes.
     bad = chief_client.form_post(f"/setup/people/{world.student.id}/enrol", {"program_id": "999",
                                                                              "started_on": "2026-11-02"})
     assert bad.status_code == 404 and parsed(bad).find(role="alert") is not None
     assert db.query(Enrolment).filter_by(student_id=world.student.id).count() == 2  # the test school's own and the new one
+
+
+def test_a_check_instructor_is_assigned_from_the_students_page(chief_client, other_instructor_client, db, world):
+    program = _program(chief_client)
+    chief_client.form_post(f"/setup/people/{world.student.id}/enrol", {
+        "program_id": program["id"], "instructor_id": world.instructor.id, "started_on": "2026-11-02"})
+    enrolment = db.query(Enrolment).filter_by(student_id=world.student.id, active=True).one()
+    assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 404
+    usual = chief_client.form_post(f"/setup/people/{world.student.id}/enrolments/{enrolment.id}/check-instructor",
+                                   {"check_instructor_id": world.instructor.id})
+    assert usual.status_code == 422 and "usual instructor" in parsed(usual).find(role="alert").get_text()
+    answer = chief_client.form_post(f"/setup/people/{world.student.id}/enrolments/{enrolment.id}/check-instructor",
+                                    {"check_instructor_id": world.other_instructor.id})
+    assert answer.status_code == 303
+    page = parsed(chief_client.get(f"/setup/people/{world.student.id}"))
+    chosen = page.find("select", attrs={"name": "check_instructor_id", "id": f"c-{enrolment.id}"})
+    assert chosen.find("option", selected=True).get_text() == world.other_instructor.name
+    assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 200
 
 
 def test_roles_and_name_are_edited(chief_client, db, world):

@@ -110,9 +110,13 @@ def test_a_lesson_signed_off_cannot_be_removed_from_the_syllabus(db, world, chie
     assert answer.status_code == 409 and "signed off" in answer.json()["detail"]
 
 
-def _confirm_stage_one(db, world, chief_client, instructor_client):
+def _confirm_stage_one(db, world, chief_client, instructor_client, *, check_instructor=None):
     program = _create(chief_client)
     enrolment = _enrol(chief_client, program["id"], world)
+    if check_instructor is not None:
+        assigned = chief_client.api("PUT", f"/api/v1/enrolments/{enrolment['id']}/check-instructor",
+                                    json={"check_instructor_id": check_instructor.id})
+        assert assigned.status_code == 200 and assigned.json()["check_instructor_id"] == check_instructor.id
     fly(db, world, [GOOD, GOOD, GOOD | {"termination": "power_recovery"}], day=0)
     for lesson in program["stages"][0]["lessons"]:
         answer = instructor_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/lessons/{lesson['id']}/confirm")
@@ -128,9 +132,48 @@ def test_the_usual_instructor_cannot_sign_the_stage_check(db, world, chief_clien
     assert "usual instructor" in answer.json()["detail"]
 
 
+def test_an_instructor_nobody_assigned_can_neither_find_nor_sign_the_stage_check(db, world, chief_client,
+                                                                                 instructor_client,
+                                                                                 other_instructor_client):
+    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client)
+    answer = other_instructor_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/stage-checks", json={
+        "stage_id": program["stages"][0]["id"], "passed": True, "password": PASSWORD})
+    assert answer.status_code == 404
+    assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 404
+
+
+def test_the_check_instructor_sees_the_file_they_check_and_no_longer_once_unassigned(
+        db, world, chief_client, instructor_client, other_instructor_client):
+    """The issue's step 6: signing a stage check and reading the progress file follow one rule."""
+    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client,
+                                            check_instructor=world.other_instructor)
+    page = other_instructor_client.get(f"/people/{world.student.id}/progress")
+    assert page.status_code == 200 and "Sign the stage check" in page.text
+    signed = other_instructor_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/stage-checks", json={
+        "stage_id": program["stages"][0]["id"], "passed": True, "password": PASSWORD})
+    assert signed.status_code == 201, signed.text
+    assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 200
+    cleared = chief_client.api("PUT", f"/api/v1/enrolments/{enrolment['id']}/check-instructor",
+                               json={"check_instructor_id": None})
+    assert cleared.status_code == 200 and cleared.json()["check_instructor_id"] is None
+    assert other_instructor_client.get(f"/people/{world.student.id}/progress").status_code == 404
+
+
+def test_the_usual_instructor_cannot_be_named_check_instructor(world, chief_client, instructor_client):
+    program = _create(chief_client)
+    enrolment = _enrol(chief_client, program["id"], world)
+    answer = chief_client.api("PUT", f"/api/v1/enrolments/{enrolment['id']}/check-instructor",
+                              json={"check_instructor_id": world.instructor.id})
+    assert answer.status_code == 422 and "usual instructor" in answer.json()["detail"]
+    by_instructor = instructor_client.api("PUT", f"/api/v1/enrolments/{enrolment['id']}/check-instructor",
+                                          json={"check_instructor_id": None})
+    assert by_instructor.status_code == 403
+
+
 def test_a_check_instructor_or_chief_pilot_signs_the_stage_check(db, world, chief_client, instructor_client,
                                                                  other_instructor_client, student_client):
-    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client)
+    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client,
+                                            check_instructor=world.other_instructor)
     url = f"/api/v1/enrolments/{enrolment['id']}/stage-checks"
     stage_id = program["stages"][0]["id"]
     wrong = other_instructor_client.api("POST", url, json={"stage_id": stage_id, "passed": True, "password": "nope"})
@@ -149,7 +192,8 @@ def test_a_check_instructor_or_chief_pilot_signs_the_stage_check(db, world, chie
 
 def test_a_wrong_password_on_the_stage_check_api_stays_in_the_audit_chain(db, world, chief_client, instructor_client,
                                                                           other_instructor_client):
-    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client)
+    program, enrolment = _confirm_stage_one(db, world, chief_client, instructor_client,
+                                            check_instructor=world.other_instructor)
     wrong = other_instructor_client.api("POST", f"/api/v1/enrolments/{enrolment['id']}/stage-checks", json={
         "stage_id": program["stages"][0]["id"], "passed": True, "password": "nope"})
     assert wrong.status_code == 422
