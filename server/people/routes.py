@@ -74,6 +74,13 @@ async def signin(request: Request, check: CheckedSignIn, db: DbSession, user_ses
     if user_session is None:
         return RedirectResponse("/signin", status_code=303)
     await check_csrf(request, user_session.csrf_token)
+    # The database work in the thread pool: /signin skips the writer queue, and on PostgreSQL its audit
+    # entry waits for the chain's lock; waiting on the event loop would stop the request that holds the
+    # lock from ever reaching its commit (two sign-ins at once hung there).
+    return await run_in_threadpool(_record_sign_in, request, db, user_session, check, email)
+
+
+def _record_sign_in(request: Request, db, user_session, check: people.SignInCheck | None, email: str):
     try:
         person = people.record_sign_in(db, check=check)
     except Unauthorized as refusal:
@@ -91,7 +98,7 @@ async def signin(request: Request, check: CheckedSignIn, db: DbSession, user_ses
 
 
 @router.post("/signout")
-async def signout(request: Request, db: DbSession, person: PageUser):
+def signout(request: Request, db: DbSession, person: PageUser):
     people.end_session(db, row=request.state.user_session)
     response = RedirectResponse("/signin", status_code=303)
     response.delete_cookie(cookie_name(request), path="/")
