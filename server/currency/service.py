@@ -113,12 +113,14 @@ def delete_rule(session: Session, *, actor: Person, rule: CurrencyRule) -> None:
     """Remove a rule from the board; the audit chain keeps what it said."""
     require_chief(actor)
     before, rule_id = rule_values(rule), rule.id
+    # The audit entry first, as every change does before the kept rows (on PostgreSQL: the chain's lock,
+    # then the kept rows' locks, in that one order, so two changes never wait on each other).
+    audit.append(session, actor_id=actor.id, action="delete", entity="currency_rule", entity_id=rule_id,
+                 before=before)
     rule.active = False  # out of list_rules, so its kept rows go before the rule does
     _kept_state_follows(session, rule_id)
     session.delete(rule)
     session.flush()
-    audit.append(session, actor_id=actor.id, action="delete", entity="currency_rule", entity_id=rule_id,
-                 before=before)
 
 
 def applies_to(rule: CurrencyRule, *, person_id: int, roles: list[str]) -> bool:
