@@ -23,9 +23,20 @@ def watch(page) -> list[str]:
     """Script and console errors as they happen (a blocked script or style shows up here), and every
     content security policy violation in window.cspViolations."""
     errors: list[str] = []
+
+    def on_console(msg):
+        if msg.type != "error" or msg.location.get("url", "").endswith("/favicon.ico"):
+            return
+        if msg.text.startswith("htmx:sendAbort"):
+            # htmx logs a request it aborted (hx-sync replacing it, or the page moving on mid-request)
+            # as "htmx:afterRequest" then "htmx:sendAbort": nothing a person notices, so neither counts.
+            if errors and errors[-1].startswith("htmx:afterRequest"):
+                errors.pop()
+            return
+        errors.append(f"{msg.text} ({msg.location.get('url')})")
+
     page.on("pageerror", lambda error: errors.append(f"page error: {error}"))
-    page.on("console", lambda msg: errors.append(f"{msg.text} ({msg.location.get('url')})")
-            if msg.type == "error" and not msg.location.get("url", "").endswith("/favicon.ico") else None)
+    page.on("console", on_console)
     page.add_init_script("window.cspViolations = [];"
                          "document.addEventListener('securitypolicyviolation',"
                          " e => window.cspViolations.push(e.violatedDirective + ' ' + e.blockedURI));")
