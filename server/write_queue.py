@@ -18,8 +18,15 @@ checks and scores outside the turn and takes it only for the insert, the audit e
 time (LATE_AT_ONCE) go on to the thread pool, marked with `request.state.late_writer_turn` so that
 `get_db` does not begin them as writers; a few, so that threads waiting for the turn can never hold
 every worker thread while the holder waits for one to commit.
+
+Late and queued writers never run at the same time in one process: a queued writer may do its
+database work on the event loop (an `async def` route), and if it waited there for SQLite's lock
+while a late writer held it, the late writer's commit (run from the event loop when its route returns)
+could never come, and both would wait out the busy timeout. So a queued writer starts once no late
+writer is in flight, and late writers hold back while a queued one waits or runs.
 """
 import asyncio
+import contextlib
 import re
 import weakref
 
@@ -43,7 +50,6 @@ class WriterQueue:
         self.skip_paths = skip_paths
         # One queue per event loop: a server has one; test clients may each run their own.
         self.turns: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
-        self.late_gates: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
     async def __call__(self, scope: Scope, receive: Receive, send: Send) -> None:
         if scope["type"] != "http" or scope["method"] not in WRITING_METHODS or scope["path"] in self.skip_paths:
@@ -61,18 +67,53 @@ class WriterQueue:
                 return {"type": "http.request", "body": body, "more_body": False}
             return await receive()  # after the body: only a disconnect can come
 
-        loop = asyncio.get_running_loop()
+        turns = self.turns.setdefault(asyncio.get_running_loop(), _Turns())
         if self._takes_turn_late(scope):
             scope.setdefault("state", {})[LATE_TURN_STATE] = True
-            gate = self.late_gates.setdefault(loop, asyncio.Semaphore(LATE_AT_ONCE))
+            async with turns.late():
+                await self.app(scope, replay, send)
         else:
-            gate = self.turns.setdefault(loop, asyncio.Lock())
-        async with gate:
-            await self.app(scope, replay, send)
+            async with turns.queued():
+                await self.app(scope, replay, send)
 
     def _takes_turn_late(self, scope: Scope) -> bool:
         request_line = f"{scope['method']} {scope['path']}"
         return any(pattern.fullmatch(request_line) for pattern in self.late_turn)
+
+
+class _Turns:
+    """One event loop's writers: queued ones one at a time, first come first served, each alone;
+    late ones up to LATE_AT_ONCE together, while no queued writer waits or runs."""
+
+    def __init__(self):
+        self.queue = asyncio.Lock()  # asyncio.Lock wakes its waiters in arrival order
+        self.changed = asyncio.Condition()
+        self.late_gate = asyncio.Semaphore(LATE_AT_ONCE)
+        self.late_running = 0
+
+    @contextlib.asynccontextmanager
+    async def queued(self):
+        try:
+            async with self.queue:
+                async with self.changed:
+                    await self.changed.wait_for(lambda: self.late_running == 0)
+                yield
+        finally:
+            async with self.changed:  # the queue is free again: late writers may go on
+                self.changed.notify_all()
+
+    @contextlib.asynccontextmanager
+    async def late(self):
+        async with self.late_gate:
+            async with self.changed:
+                await self.changed.wait_for(lambda: not self.queue.locked())
+                self.late_running += 1
+            try:
+                yield
+            finally:
+                async with self.changed:
+                    self.late_running -= 1
+                    self.changed.notify_all()
 
 
 async def _whole_body(receive: Receive) -> bytes | None:

@@ -115,3 +115,39 @@ def test_an_attempt_logged_while_the_sortie_is_signed_is_in_the_signed_record_or
         assert signature.content_sha256 == content_hash(session.get(type(sortie), sortie.id))
         assert audit.verify(session).ok
     engine.dispose()
+
+
+def test_a_writer_working_on_the_event_loop_and_late_attempts_at_once_all_succeed(settings, world):
+    """An `async def` route that writes does its database work on the event loop; late attempt writers
+    commit from the event loop too, once their thread returns. Were both let in at once, the loop would
+    wait for SQLite's lock held by a late writer whose commit needs the loop, until the busy timeout
+    ('database is locked', a 500). The writer queue runs queued writers alone, so every request
+    succeeds and the chain holds."""
+    from fastapi import Request
+
+    from server.app import create_app
+    from server.db import begin_writing
+
+    app = create_app(settings)
+
+    @app.post("/test-only/write-on-the-loop")
+    async def write_on_the_loop(request: Request):
+        with app.state.sessions() as session:
+            begin_writing(session)
+            audit.append(session, actor_id=None, action="create", entity="test", entity_id="loop")
+            session.commit()
+        return {"ok": True}
+
+    try:
+        with app.state.sessions() as session:
+            sortie = make_sortie(session, world, attempts=0)
+            token = people.issue_token(session, person=session.merge(world.instructor), label="tablet")
+            session.commit()
+        attempt = (f"/api/v1/sorties/{sortie.id}/attempts", {"maneuver": "straight_in", "termination": "power_recovery"})
+        loop_writer = ("/test-only/write-on-the-loop", {})
+        answers = post_at_once(app, token, ([attempt] * 4 + [loop_writer]) * 12)
+        assert [a.status_code for a in answers] == ([201] * 4 + [200]) * 12
+        with app.state.sessions() as session:
+            assert audit.verify(session).ok
+    finally:
+        app.state.engine.dispose()
