@@ -80,6 +80,14 @@ def _person_context(db, person: Person, target: Person) -> dict:
     }
 
 
+def _person_page_refused(request: Request, db, person: Person, person_id: int, message: str, status: int):
+    """The person's page again with the reason, nothing of the refused change kept."""
+    db.rollback()
+    target = people.get_person(db, person_id)
+    return render(request, "people/setup_person.html", {**_person_context(db, person, target), "message": message},
+                  status_code=status)
+
+
 @router.get("/setup/people/{person_id}", name="person_page")
 def person_page(person_id: int, request: Request, db: DbSession, person: SetupUser, added: int = 0):
     """One person: roles, state, enrolments, and what a chief pilot does next with them."""
@@ -153,10 +161,7 @@ async def person_enrol(person_id: int, request: Request, db: DbSession, person: 
         message, status = "Choose a program.", 422
     else:
         return RedirectResponse(request.url_for("person_page", person_id=target.id), status_code=303)
-    db.rollback()
-    target = people.get_person(db, person_id)
-    return render(request, "people/setup_person.html", {**_person_context(db, person, target), "message": message},
-                  status_code=status)
+    return _person_page_refused(request, db, person, person_id, message, status)
 
 
 @router.post("/setup/people/{person_id}/enrolments/{enrolment_id}/check-instructor",
@@ -179,7 +184,4 @@ async def enrolment_check_instructor(person_id: int, enrolment_id: int, request:
         message, status = error.message, error.status_code
     else:
         return RedirectResponse(request.url_for("person_page", person_id=target.id), status_code=303)
-    db.rollback()
-    target = people.get_person(db, person_id)
-    return render(request, "people/setup_person.html", {**_person_context(db, person, target), "message": message},
-                  status_code=status)
+    return _person_page_refused(request, db, person, person_id, message, status)
