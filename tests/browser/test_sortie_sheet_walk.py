@@ -5,7 +5,7 @@ import pytest
 from playwright.sync_api import expect
 
 from server.fleet.models import Site
-from tests.browser.conftest import sign_in
+from tests.browser.conftest import sign_in, watch
 from tests.support import PASSWORD
 
 pytestmark = pytest.mark.browser
@@ -23,12 +23,8 @@ def same_page(page) -> bool:
 
 
 def watch_errors(page) -> list[str]:
-    """Script errors and console errors (a blocked script or style shows up here)."""
-    errors: list[str] = []
-    page.on("pageerror", lambda error: errors.append(f"page error: {error}"))
-    page.on("console", lambda msg: errors.append(f"console: {msg.text} ({msg.location.get('url')})")
-            if msg.type == "error" and not msg.location.get("url", "").endswith("/favicon.ico") else None)
-    return errors
+    """Script and console errors, as every page test watches them (htmx's own aborts not counted)."""
+    return watch(page)
 
 
 def density_altitude_ft(page) -> int:
