@@ -7,8 +7,11 @@ SQLite (the default): one uvicorn process serves a SQLite file (WAL, synchronous
 engine). wrk (Debian package `wrk`) drives 32 connections on loopback for a bounded time at:
 - the bare endpoint, added only to this benchmark's app instance: validate a 12-field model, insert one
   row through a session from the app's own session factory with BEGIN IMMEDIATE, commit;
+- the audited floor, also only in this benchmark's app: the same insert behind what every write of the
+  API must do besides, the bearer token checked and one audit entry appended to the chain (a plain `def`
+  route with the app's `DbSession` and `ApiUser`, as the API's routes are);
 - POST /api/v1/sorties/{id}/attempts with a bearer token, spread over 32 draft sorties.
-Rounds alternate between the two; the figures are the median of the rounds. The goals: no errors,
+Rounds alternate between the three; the figures are the median of the rounds. The goals: no errors,
 attempts at 0.7 or more of the bare endpoint's throughput and a p99 at most 2 times the bare one's.
 
 PostgreSQL (`--postgres URL`): a database of its own (flarebook_bench) is made beside the URL's and
@@ -37,8 +40,10 @@ from sqlalchemy.engine import make_url
 from server.app import create_app
 from server.config import PROJECT_ROOT, Settings
 from server.db import begin_writing, make_engine, make_session_factory
+from server.deps import DbSession
 from server.migrate import upgrade
 from server.people import service as people
+from server.people.deps import ApiUser
 from server.records import audit
 from tests.benchmarks import machine
 from tests.support import build_world, make_sortie
@@ -82,6 +87,13 @@ def bench_app():
             session.commit()
         return {"id": new_id}
 
+    @app.post("/bench/audited", status_code=201)
+    def audited(row: BareRow, db: DbSession, person: ApiUser):
+        new_id = db.execute(insert(bench_rows).values(**row.model_dump())).inserted_primary_key[0]
+        audit.append(db, actor_id=person.id, action="create", entity="bench_row", entity_id=new_id,
+                     after=row.model_dump())
+        return {"id": new_id}
+
     return app
 
 
@@ -100,14 +112,14 @@ def prepare(url: str, sorties: int) -> tuple[str, str, list[int]]:
 
 
 def lua_script(folder: Path, kind: str, token: str, sortie_ids: list[int]) -> Path:
-    if kind == "bare":
+    auth = f'wrk.headers["Authorization"] = "Bearer {token}"\n'
+    if kind in ("bare", "audited"):
         body = json.dumps({**{f"v{i}": float(i) for i in range(11)}, "label": "bench"})
-        paths = ["/bench/bare"]
-        auth = ""
+        paths = [f"/bench/{kind}"]
+        auth = "" if kind == "bare" else auth
     else:
         body = json.dumps(ATTEMPT)
         paths = [f"/api/v1/sorties/{i}/attempts" for i in sortie_ids]
-        auth = f'wrk.headers["Authorization"] = "Bearer {token}"\n'
     script = folder / f"{kind}.lua"
     script.write_text(
         'wrk.method = "POST"\n'
@@ -213,11 +225,12 @@ def figures_line(label: str, figures: dict) -> str:
 
 def sqlite_run(args, folder: Path) -> bool:
     url, token, sortie_ids = prepare(f"sqlite:///{folder / 'bench.sqlite3'}", args.connections)
-    scripts = {kind: lua_script(folder, kind, token, sortie_ids) for kind in ("bare", "attempt")}
-    results = {"bare": [], "attempt": []}
+    kinds = ("bare", "audited", "attempt")
+    scripts = {kind: lua_script(folder, kind, token, sortie_ids) for kind in kinds}
+    results = {kind: [] for kind in kinds}
     with Server(url) as server:
         for _ in range(args.rounds):
-            for kind in ("bare", "attempt"):
+            for kind in kinds:
                 results[kind].append(run_wrk(server.port, scripts[kind], args.seconds, args.connections))
                 print(kind, results[kind][-1], flush=True)
     chain = chain_report(url)
@@ -229,8 +242,11 @@ def sqlite_run(args, folder: Path) -> bool:
           "SQLite WAL synchronous=FULL")
     for kind, figures in summary.items():
         print(figures_line(kind, figures))
+    floor_ratio = summary["audited"]["rps"] / summary["bare"]["rps"]
     print(f"  attempts / bare = {ratio:.2f} (goal: at least 0.70); p99 attempts / bare = {p99_ratio:.2f} "
           f"(goal: at most 2); errors: {errors}; {chain_words(chain)}")
+    print(f"  audited floor / bare = {floor_ratio:.2f}; attempts / audited floor = "
+          f"{summary['attempt']['rps'] / summary['audited']['rps']:.2f}")
     return ratio >= 0.7 and p99_ratio <= 2 and errors == 0 and chain.ok
 
 
