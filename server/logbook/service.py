@@ -384,7 +384,12 @@ def attempt_record(attempt: Attempt) -> dict:
 
 
 def content_hash(sortie: Sortie) -> str:
-    return hashlib.sha256(audit.canonical_json(sortie_record(sortie)).encode()).hexdigest()
+    return record_hash(sortie_record(sortie))
+
+
+def record_hash(record: dict) -> str:
+    """The signed content hash of a `sortie_record`."""
+    return hashlib.sha256(audit.canonical_json(record).encode()).hexdigest()
 
 
 def sign_sortie(session: Session, *, actor: Person, sortie: Sortie, password: str) -> Signature:
@@ -417,18 +422,27 @@ def record_signature(session: Session, *, actor: Person, sortie: Sortie, meaning
     session.expire(sortie, ["attempts"])  # so the signed content holds every attempt committed before
     if not sortie.attempts:
         raise Invalid("Log at least one attempt before signing the sortie.")
-    sortie.state = "signed"  # written with the signature in one flush
-    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning=meaning,
-                          statement=MEANINGS[meaning], content_sha256=content_hash(sortie))
+    signature, entry = seal(actor=actor, sortie=sortie, meaning=meaning, record=sortie_record(sortie))
     session.add(signature)
     session.flush()
-    # The record as signed goes into the chain too, so a later check can say which field changed.
-    audit.append(session, actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
-                 after={"content_sha256": signature.content_sha256, "meaning": signature.meaning,
-                        "record": sortie_record(sortie)})
+    audit.append(session, **entry)
     if tell_others:
         hooks.sorties_signed(session, [sortie])
     return signature
+
+
+def seal(*, actor: Person, sortie: Sortie, meaning: str, record: dict) -> tuple[Signature, dict]:
+    """Mark a draft signed: its Signature over `record` (its `sortie_record`, read by the caller with every
+    attempt it holds), and the audit entry (`audit.append` keywords) that keeps the record as signed.
+
+    The caller adds both to the session; `record_signature` for one sortie, an import for many at once."""
+    sortie.state = "signed"
+    signature = Signature(sortie_id=sortie.id, signer_id=actor.id, meaning=meaning,
+                          statement=MEANINGS[meaning], content_sha256=record_hash(record))
+    # The record as signed goes into the chain too, so a later check can say which field changed.
+    entry = dict(actor_id=actor.id, action="sign", entity="sortie", entity_id=sortie.id,
+                 after={"content_sha256": signature.content_sha256, "meaning": meaning, "record": record})
+    return signature, entry
 
 
 def acknowledge_sortie(session: Session, *, actor: Person, sortie: Sortie) -> Signature:

@@ -2,15 +2,18 @@
 
 The same rules as a sortie typed on the sheet, in bulk: conditions set and derived as `create_sortie`
 does, every attempt scored by `derive.score` with the standard `standard_for` names, the sortie's
-content written to the audit chain, then sealed by `record_signature` with the meaning
-"transcribed from earlier records". Rows are inserted a few statements at a time rather than one
-unit of work per attempt, so a file of ten thousand rows imports in seconds.
+content written to the audit chain, then sealed by `logbook.seal` (what `record_signature` does for one
+sortie) with the meaning "transcribed from earlier records". Rows are inserted a few statements at a
+time rather than one unit of work per attempt or sortie, so a file of ten thousand rows imports in
+seconds.
 """
+import math
 from dataclasses import dataclass
 
+from sqlalchemy import Float, inspect
 from sqlalchemy.orm import Session
 
-from server.errors import Forbidden
+from server.errors import Forbidden, Invalid
 from server.fleet.models import Aircraft, Site
 from server.logbook import derive, hooks
 from server.logbook import service as logbook
@@ -39,6 +42,8 @@ def create_transcribed(session: Session, *, actor: Person, sorties: list[Transcr
     """Create, score, audit and sign each sortie; callers have checked every row and that actor is a chief pilot."""
     if not actor.has_role("chief_pilot"):
         raise Forbidden("Only a chief pilot signs sorties transcribed from earlier records.")
+    if any(not item.attempts for item in sorties):
+        raise Invalid("Log at least one attempt before signing the sortie.")
     built: list[Sortie] = []
     for item in sorties:
         sortie = Sortie(flown_at=item.data.flown_at, aircraft_id=item.aircraft.id, instructor_id=item.data.instructor_id,
@@ -47,16 +52,17 @@ def create_transcribed(session: Session, *, actor: Person, sorties: list[Transcr
         sortie.aircraft, sortie.site = item.aircraft, item.site
         logbook._set_conditions(sortie, item.data, item.data.model_fields_set | {"remarks"})
         derive.apply_conditions(sortie)
+        _as_stored(sortie, SORTIE_FLOATS)
         built.append(sortie)
     session.add_all(built)
     session.flush()
 
-    school = people.school(session)  # held, so the session's weak identity map keeps it for local_date
+    zone = people.school_zone(session)  # read once: nothing changes the school's time zone meanwhile
     standards: dict[tuple[int, str], object] = {}  # nothing changes standards during the import
     # No flush between attempts: they go to the database together, a few multi-row INSERTs in all.
     with session.no_autoflush:
         for sortie, item in zip(built, sorties, strict=True):
-            flown_on = people.local_date(session, sortie.flown_at)
+            flown_on = sortie.flown_at.astimezone(zone).date()  # people.local_date, without a query per sortie
             for sequence, fields in enumerate(item.attempts, start=1):
                 key = (sortie.pilot_id, fields.maneuver)
                 if key not in standards:
@@ -65,12 +71,38 @@ def create_transcribed(session: Session, *, actor: Person, sorties: list[Transcr
                                   **fields.model_dump())
                 sortie.attempts.append(attempt)
                 derive.score(attempt, sortie, standards[key])
+                _as_stored(attempt, ATTEMPT_FLOATS)
     session.flush()
-    del school
 
+    # Signed from what is in memory: these sorties were made in this transaction, so no one else can
+    # have added an attempt (record_signature's lock and re-read guard against that for a typed one).
+    # Every sortie's entries in the chain in the same order as one by one (created, then signed), but
+    # written in one flush: one read of the chain's head and a few multi-row INSERTs.
+    signatures, entries = [], []
     for sortie in built:
-        audit.append(session, actor_id=actor.id, action="create", entity="sortie", entity_id=sortie.id,
-                     after=logbook.sortie_record(sortie), reason=reason)
-        logbook.record_signature(session, actor=actor, sortie=sortie, meaning=TRANSCRIBED, tell_others=False)
+        record = logbook.sortie_record(sortie)
+        entries.append(dict(actor_id=actor.id, action="create", entity="sortie", entity_id=sortie.id,
+                            after=record, reason=reason))
+        signature, signed = logbook.seal(actor=actor, sortie=sortie, meaning=TRANSCRIBED, record=record)
+        signatures.append(signature)
+        entries.append(signed)
+    session.add_all(signatures)
+    audit.append_many(session, entries)
     hooks.sorties_signed(session, built)  # once for the whole file, not once per sortie
     return built
+
+
+def _float_columns(model) -> tuple[str, ...]:
+    return tuple(column.key for column in inspect(model).column_attrs if isinstance(column.columns[0].type, Float))
+
+
+SORTIE_FLOATS, ATTEMPT_FLOATS = _float_columns(Sortie), _float_columns(Attempt)
+
+
+def _as_stored(row, names: tuple[str, ...]) -> None:
+    """Write -0.0 (a "-0" in the file, or a rounded -0.04 kt headwind) as 0.0: SQLite reads it back as 0.0,
+    PostgreSQL as -0.0, and the content signed from memory must be the content read back on either."""
+    for name in names:
+        value = row.__dict__.get(name)
+        if value == 0 and isinstance(value, float) and math.copysign(1.0, value) < 0:
+            setattr(row, name, 0.0)
