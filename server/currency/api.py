@@ -1,11 +1,12 @@
 """JSON API: currency rules, each person's currency, the readiness board, calendar links and feeds."""
+import gzip
 from datetime import date
 
 from fastapi import APIRouter, Query, Request, Response
 from pydantic import ValidationError
 from pydantic_core import to_json
 
-from server.currency import board, feeds
+from server.currency import board, board_cache, feeds
 from server.currency import service as rules_service
 from server.currency.models import CalendarFeed, CurrencyRule
 from server.currency.schemas import (
@@ -95,18 +96,47 @@ def person_currency(person_id: int, db: DbSession, person: ApiUser, as_of: date 
 
 # Named apart from the readiness board page, which url_for("readiness_board") must find.
 @router.get("/currency", response_model=BoardRead, name="readiness_board_api")
-def readiness_board(db: DbSession, person: SetupApiUser, as_of: date | None = None, role: Role | None = None,
-                    rule_id: int | None = None, status: Status | None = None):
-    """Every active pilot against every rule that applies, soonest trouble first (chief pilots)."""
-    as_of = as_of or people.school_today(db)
-    rows = board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status)
-    # The rows come from our own evaluation, already in the shape of BoardRead: serialised once as plain
-    # values by pydantic's own encoder, without a model per row (thousands on a large school's board).
-    answer = {"as_of": as_of, "rows": [{
-        "person_id": r.person_id, "name": r.name, "roles": r.roles, "rule_id": r.rule_id, "rule_name": r.rule_name,
-        "status": r.status, "current_until": r.current_until, "qualifying_count": r.qualifying_count,
-        "needed": r.needed, "remedy": r.remedy} for r in rows]}
-    return Response(to_json(answer), media_type="application/json")
+def readiness_board(request: Request, db: DbSession, person: SetupApiUser, as_of: date | None = None,
+                    role: Role | None = None, rule_id: int | None = None, status: Status | None = None):
+    """Every active pilot against every rule that applies, soonest trouble first (chief pilots).
+
+    Today's board is kept, compressed once, while nothing on it changes (`board_cache`); every chief
+    pilot sees the same whole school, so the viewer is not part of the key."""
+    today = people.school_today(db)
+    as_of = as_of or today
+
+    def made() -> tuple[bytes, bytes]:
+        body = board_json(as_of, board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status))
+        return body, gzip.compress(body, compresslevel=6)
+
+    if as_of != today:
+        return Response(made()[0], media_type="application/json")  # the app's GZip middleware compresses it
+    body, packed = board_cache.kept_for_today(request.app, db, ("json", today, role, rule_id, status), made)
+    if "gzip" in request.headers.get("accept-encoding", ""):  # as the GZip middleware reads it
+        return Response(packed, media_type="application/json",
+                        headers={"Content-Encoding": "gzip", "Vary": "Accept-Encoding"})
+    return Response(body, media_type="application/json")
+
+
+def board_json(as_of: date, cells: board.Cells) -> bytes:
+    """BoardRead as bytes, from plain values, without a model or a dict per row (thousands on a large
+    school's board): each person's fields and each distinct status's fields are serialised once, by
+    pydantic's own encoder, and every row joins the two."""
+    people_parts = {pid: to_json({"person_id": pid, "name": name, "roles": roles})[1:-1]
+                    for pid, (name, roles) in cells.people.items()}
+    status_parts: dict[int, bytes] = {}  # by id(status): cells with the same facts share a status object
+    rows = []
+    for cell in cells.cells:
+        status = cell[5]
+        part = status_parts.get(id(status))
+        if part is None:
+            rule = cells.rules[cell[4]]
+            part = status_parts[id(status)] = to_json({
+                "rule_id": rule[0], "rule_name": rule[1], "status": status.status,
+                "current_until": status.current_until, "qualifying_count": status.qualifying_count,
+                "needed": status.needed, "remedy": status.remedy})[1:-1]
+        rows.append(b"{" + people_parts[cell[3]] + b"," + part + b"}")
+    return b'{"as_of":' + to_json(as_of) + b',"rows":[' + b",".join(rows) + b"]}"
 
 
 @router.get("/calendar-feeds", response_model=list[FeedRead])

@@ -9,7 +9,6 @@ from server.compute.currency import (
     STATUS_RANK,
     CurrencyStatus,
     evaluate_currency,
-    facts_hold_on,
     format_date,
     status_from_facts,
 )
@@ -66,28 +65,77 @@ class Standing:
             return f"since {format_date(self.current_until + timedelta(days=1))}"
         return f"until {format_date(self.current_until)}"
 
-    def sort_key(self) -> tuple:
-        """Soonest trouble first: never done, lapsed, due soon, current; earlier dates first within each."""
-        return (STATUS_RANK[self.status], self.current_until or date.max, self.name.casefold(), self.rule_name,
-                self.person_id, self.rule_id)
-
     def csv_row(self) -> tuple:
         return (self.name, self.role_words, self.rule_name, self.label, self.date_words,
                 self.qualifying_count, self.needed, self.remedy)
 
 
+# ---- the cells: every person under every rule, before any Standing is made -----------------------
+
+# A cell: (order, name rank, rule rank, person id, rule id, status). Sorted, soonest trouble first: never
+# done, lapsed, due soon, current (`status_order`); earlier dates first within each; then the name, the
+# rule's name, the ids. The first five are integers, so sorting thousands of cells compares integers only;
+# cells with the same facts under the same rule share one CurrencyStatus.
+Cell = tuple[int, int, int, int, int, CurrencyStatus]
+
+
+def status_order(status: CurrencyStatus) -> int:
+    """The status's rank, then its date (none last), as one integer."""
+    return STATUS_RANK[status.status] * 10_000_000 + (status.current_until or date.max).toordinal()
+
+
+@dataclass(slots=True)
+class Cells:
+    """The board's cells (sorted, soonest trouble first) with the people and rules they name."""
+
+    people: dict[int, tuple[str, tuple[str, ...]]]  # id: (name, roles)
+    rules: dict[int, tuple[int, str, int]]  # id: (id, name, warn_days)
+    cells: list[Cell]
+
+    def standing(self, cell: Cell) -> Standing:
+        return _standing_of(cell[3], self.people[cell[3]], self.rules[cell[4]], cell[5])
+
+    def standings(self) -> list[Standing]:
+        return [self.standing(cell) for cell in self.cells]
+
+    def keep(self, *, role: str | None = None, status: str | None = None) -> "Cells":
+        """The cells of people with this role, in this status."""
+        cells = self.cells
+        if role:
+            cells = [cell for cell in cells if role in self.people[cell[3]][1]]
+        if status:
+            cells = [cell for cell in cells if cell[5].status == status]
+        return Cells(people=self.people, rules=self.rules, cells=cells)
+
+
+def _ranks(values: dict[int, str]) -> dict[int, int]:
+    """Each id's place among the values (equal values share a place)."""
+    order = {value: i for i, value in enumerate(sorted(set(values.values())))}
+    return {key: order[value] for key, value in values.items()}
+
+
+def _cells(people_rows: dict[int, tuple[str, tuple[str, ...]]], rules: Sequence[CurrencyRule]) -> Cells:
+    return Cells(people=people_rows, rules={rule.id: (rule.id, rule.name, rule.warn_days) for rule in rules}, cells=[])
+
+
 def standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | None = None,
               person_ids: Sequence[int] | None = None) -> list[Standing]:
-    """Every active person against every rule that applies to them, soonest trouble first.
+    """Every active person against every rule that applies to them, soonest trouble first."""
+    return board_cells(session, as_of=as_of, rules=rules, person_ids=person_ids).standings()
+
+
+def board_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule] | None = None,
+                person_ids: Sequence[int] | None = None) -> Cells:
+    """The cells of every active person against every rule that applies to them, soonest trouble first.
 
     For the school's today the kept state answers (`server/currency/kept.py`); any other date is
     evaluated from the whole history."""
     rules = list(rules_service.list_rules(session) if rules is None else rules)
     if as_of == people.school_today(session):
-        found = kept_standings(session, as_of=as_of, rules=rules, person_ids=person_ids)
+        found = kept_cells(session, as_of=as_of, rules=rules, person_ids=person_ids)
         if found is not None:
             return found
-    return evaluated_standings(session, as_of=as_of, rules=rules, person_ids=person_ids)
+    return evaluated_cells(session, as_of=as_of, rules=rules, person_ids=person_ids)
 
 
 def _standing(person_id: int, person: tuple[str, tuple[str, ...]], rule: CurrencyRule,
@@ -106,83 +154,102 @@ def _standing_of(person_id: int, person: tuple[str, tuple[str, ...]], rule: tupl
 
 def evaluated_standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
                         person_ids: Sequence[int] | None = None) -> list[Standing]:
-    """The standings evaluated set-wise from the whole history (`evaluation.summaries`)."""
+    return evaluated_cells(session, as_of=as_of, rules=rules, person_ids=person_ids).standings()
+
+
+def evaluated_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
+                    person_ids: Sequence[int] | None = None) -> Cells:
+    """The cells evaluated set-wise from the whole history (`evaluation.summaries`)."""
     people_rows = kept.active_people(session, person_ids)
+    out = _cells({pid: (name, roles) for pid, name, roles in people_rows}, rules)
     pairs = [(person, rule) for person in people_rows for rule in rules
              if rules_service.applies_to(rule, person_id=person[0], roles=list(person[2]))]
     if not pairs:
-        return []
+        return out
     wanted_ids = {rule.id for _, rule in pairs}
     wanted_rules = [rule for rule in rules if rule.id in wanted_ids]
     found = evaluation.summaries(session, rules=wanted_rules, as_of=as_of,
                                  pilot_ids=None if person_ids is None else [p[0] for p in people_rows])
     types = rules_service.type_names(session)
     words = {rule.id: rules_service.describe(rule, types) for rule in wanted_rules}
-    out = []
-    for (person_id, name, roles), rule in pairs:
+    names = _ranks({pid: name.casefold() for pid, (name, _) in out.people.items()})
+    rule_places = _ranks({rule.id: rule.name for rule in rules})
+    for (person_id, _, _), rule in pairs:
         summary = found.get((person_id, rule.id), evaluation.NEVER)
         status = evaluation.status_for(rule, summary, as_of=as_of, words=words[rule.id])
-        out.append(_standing(person_id, (name, roles), rule, status))
-    out.sort(key=Standing.sort_key)
+        out.cells.append((status_order(status), names[person_id], rule_places[rule.id], person_id, rule.id, status))
+    out.cells.sort()
     return out
 
 
 def kept_standings(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
                    person_ids: Sequence[int] | None = None) -> list[Standing] | None:
     """The standings from the kept rows; None when a row was written after as_of (its dates may be pruned)."""
+    found = kept_cells(session, as_of=as_of, rules=rules, person_ids=person_ids)
+    return None if found is None else found.standings()
+
+
+def kept_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
+               person_ids: Sequence[int] | None = None) -> Cells | None:
+    """The cells from the kept rows; None when a row was written after as_of (its dates may be pruned).
+
+    Thousands of rows: each is compared as the driver gives its dates (ISO text on SQLite, dates on
+    PostgreSQL, both ordered as the days are), and a status is made once per distinct set of facts."""
+    out = _cells({pid: (name, roles) for pid, name, roles in kept.active_people(session, person_ids)}, rules)
     if not rules:
-        return []
-    who = {pid: (name, roles) for pid, name, roles in kept.active_people(session, person_ids)}
+        return out
     by_id = {rule.id: rule for rule in rules}
     types = rules_service.type_names(session)
     words = {rule.id: rules_service.describe(rule, types) for rule in rules}
-    plain = {rule.id: (rule.id, rule.name, rule.warn_days) for rule in rules}
-    out, reread = [], []
-    statuses: dict[tuple, CurrencyStatus] = {}  # the same facts under the same rule: the same status, made once
+    who = out.people
+    names = _ranks({pid: name.casefold() for pid, (name, _) in who.items()})
+    rule_places = _ranks({rule.id: rule.name for rule in rules})
+    rows = kept.today_rows(session, rule_ids=list(by_id), person_ids=person_ids)
+    if not rows:
+        return out
+    today = as_of.isoformat() if isinstance(rows[0][2], str) else as_of
+    cells, reread = out.cells, []
+    append = cells.append
+    statuses: dict[tuple, tuple[int, CurrencyStatus]] = {}  # the same facts under the same rule: one status
     day = kept.as_date
-    for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in kept.today_rows(
-            session, rule_ids=list(by_id), person_ids=person_ids):
-        counted_on, newest_on, current_until, through = day(counted_on), day(newest_on), day(current_until), day(through)
-        if counted_on > as_of:
+    for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in rows:
+        if counted_on > today:
             return None
-        person = who.get(pilot_id)
-        if person is None:
+        name_place = names.get(pilot_id)
+        if name_place is None:
             continue  # not active: refresh removes such rows in the same transaction; verify reports one left
-        if not facts_hold_on(as_of, counted_on=counted_on, newest_on=newest_on, counted_through=through):
+        # `facts_hold_on`, written out: a call per row would cost more than the rest of this loop.
+        if (newest_on is not None and newest_on > today) or (through is not None and through < today):
             reread.append((pilot_id, rule_id))
             continue
         key = (rule_id, current_until, count, newest_on is not None, still)
-        status = statuses.get(key)
-        if status is None:
+        found = statuses.get(key)
+        if found is None:
             rule = by_id[rule_id]
-            status = statuses[key] = status_from_facts(
-                as_of=as_of, current_until=current_until, count_in_window=count, ever=newest_on is not None,
+            status = status_from_facts(
+                as_of=as_of, current_until=day(current_until), count_in_window=count, ever=newest_on is not None,
                 still_counting=still, min_count=rule.min_count, warn_days=rule.warn_days,
                 describe=words[rule_id][0], describe_one=words[rule_id][1])
-        out.append(_standing_of(pilot_id, person, plain[rule_id], status))
+            found = statuses[key] = (status_order(status), status)
+        append((found[0], name_place, rule_places[rule_id], pilot_id, rule_id, found[1]))
     # A date left the window since the row was written, or a date ahead has come: count from its dates.
     for (pilot_id, rule_id), dates in kept.dates_of(session, reread).items():
         rule = by_id[rule_id]
         status = evaluate_currency(dates, as_of=as_of, window_days=rule.window_days, window_months=rule.window_months,
                                    min_count=rule.min_count, warn_days=rule.warn_days, describe=words[rule_id][0],
                                    describe_one=words[rule_id][1])
-        out.append(_standing(pilot_id, who[pilot_id], rule, status))
-    out.sort(key=Standing.sort_key)
+        append((status_order(status), names[pilot_id], rule_places[rule_id], pilot_id, rule_id, status))
+    cells.sort()
     return out
 
 
 def board(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,
-          status: str | None = None) -> list[Standing]:
-    """The readiness board with its filters; one rule evaluates only that rule."""
+          status: str | None = None) -> Cells:
+    """The readiness board's cells with its filters; one rule evaluates only that rule."""
     rules = rules_service.list_rules(session)
     if rule_id is not None:
         rules = [rule for rule in rules if rule.id == rule_id]
-    rows = standings(session, as_of=as_of, rules=rules)
-    if role:
-        rows = [row for row in rows if role in row.roles]
-    if status:
-        rows = [row for row in rows if row.status == status]
-    return rows
+    return board_cells(session, as_of=as_of, rules=rules).keep(role=role, status=status)
 
 
 def person_standings(session: Session, *, person_id: int, as_of: date) -> list[Standing]:
@@ -220,39 +287,68 @@ class GridRow:
     name: str
     roles: tuple[str, ...]
     cells: dict[int, Standing]
-
-    @property
-    def worst(self) -> Standing:
-        return min(self.cells.values(), key=Standing.sort_key)
+    worst: Standing  # the cell soonest in trouble, which places the pilot on the board
 
     @property
     def role_words(self) -> str:
         return self.worst.role_words
 
-    def sort_key(self) -> tuple:
-        """Soonest trouble first: the pilot's worst cell decides, then the name."""
-        worst = self.worst
-        return (STATUS_RANK[worst.status], worst.current_until or date.max, self.name.casefold(), self.person_id)
+
+@dataclass(slots=True)
+class Grid:
+    """The board pivoted to one line per pilot, soonest trouble first: each line is the pilot's cells,
+    worst first. A GridRow (with a Standing per cell) is made only for the lines shown."""
+
+    cells: Cells
+    lines: list[list[Cell]]
+    _counts: dict[str, int] | None = None
+
+    def rows(self, start: int = 0, stop: int | None = None) -> list[GridRow]:
+        out = []
+        for line in self.lines[start:stop]:
+            shown = {cell[4]: self.cells.standing(cell) for cell in line}
+            worst = shown[line[0][4]]
+            out.append(GridRow(person_id=worst.person_id, name=worst.name, roles=worst.roles, cells=shown, worst=worst))
+        return out
+
+    def counts(self) -> dict[str, int]:
+        """How many cells of the lines are in each status (counted once: a grid is kept between requests)."""
+        if self._counts is None:
+            counts = {key: 0 for key in STATUS_LABELS}
+            for line in self.lines:
+                for cell in line:
+                    counts[cell[5].status] += 1
+            self._counts = counts
+        return dict(self._counts)
 
 
-def grid(rows: Sequence[Standing], *, status: str | None = None) -> list[GridRow]:
-    """The standings pivoted to one row per pilot, soonest trouble first; `status` keeps pilots with a cell in it."""
-    by_person: dict[int, GridRow] = {}
-    for row in rows:
-        line = by_person.setdefault(row.person_id, GridRow(person_id=row.person_id, name=row.name,
-                                                           roles=row.roles, cells={}))
-        line.cells[row.rule_id] = row
-    found = [line for line in by_person.values() if status is None
-             or any(cell.status == status for cell in line.cells.values())]
-    return sorted(found, key=GridRow.sort_key)
+def grid(cells: Cells, *, status: str | None = None) -> Grid:
+    """The cells pivoted to one line per pilot, soonest trouble first (the worst cell, then the name);
+    `status` keeps pilots with a cell in it."""
+    by_person: dict[int, list[Cell]] = {}
+    for cell in cells.cells:  # sorted, so each pilot's first cell is their worst
+        line = by_person.get(cell[3])
+        if line is None:
+            by_person[cell[3]] = [cell]
+        else:
+            line.append(cell)
+    lines = [line for line in by_person.values()
+             if status is None or any(cell[5].status == status for cell in line)]
+    lines.sort(key=lambda line: (line[0][0], line[0][1], line[0][3]))  # worst's status and date, name, id
+    return Grid(cells=cells, lines=lines)
 
 
 def board_grid(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,
-               status: str | None = None) -> tuple[list[CurrencyRule], list[GridRow]]:
-    """The board's columns (the rules that apply to someone shown) and its rows, one per pilot."""
+               status: str | None = None) -> tuple[list[CurrencyRule], Grid]:
+    """The board's columns (the rules that apply to someone shown) and its lines, one per pilot."""
     lines = grid(board(session, as_of=as_of, role=role, rule_id=rule_id), status=status)
-    used = {rule_id for line in lines for rule_id in line.cells}
-    return [rule for rule in rules_service.list_rules(session) if rule.id in used], lines
+    return grid_columns(session, lines), lines
+
+
+def grid_columns(session: Session, lines: Grid) -> list[CurrencyRule]:
+    """The rules that apply to someone shown, in the rules' order."""
+    used = {cell[4] for line in lines.lines for cell in line}
+    return [rule for rule in rules_service.list_rules(session) if rule.id in used]
 
 
 def rule_texts(session: Session, rules: Sequence[CurrencyRule]) -> dict[int, str]:
@@ -267,9 +363,9 @@ def rule_texts(session: Session, rules: Sequence[CurrencyRule]) -> dict[int, str
     return out
 
 
-def cells_of(lines: Sequence[GridRow], columns: Sequence[CurrencyRule]) -> list[Standing]:
+def cells_of(lines: Grid, columns: Sequence[CurrencyRule]) -> list[Standing]:
     """Every cell of the grid, pilot by pilot in the board's order, rule by rule in the columns' order."""
-    return [line.cells[rule.id] for line in lines for rule in columns if rule.id in line.cells]
+    return [line.cells[rule.id] for line in lines.rows() for rule in columns if rule.id in line.cells]
 
 
 @dataclass(frozen=True)
@@ -288,16 +384,13 @@ class BoardPage:
         return 0 if self.show_all else (self.page - 1) * PAGE_SIZE
 
 
-def board_page(rows: list[GridRow], *, page: int, show_all: bool) -> BoardPage:
+def board_page(lines: Grid, *, page: int, show_all: bool) -> BoardPage:
     """The page asked for (a page past the end shows the last one)."""
-    counts = {key: 0 for key in STATUS_LABELS}
-    for row in rows:
-        for cell in row.cells.values():
-            counts[cell.status] += 1
-    pages = max(1, -(-len(rows) // PAGE_SIZE))
+    total = len(lines.lines)
+    pages = max(1, -(-total // PAGE_SIZE))
     page = min(page, pages)
-    shown = rows if show_all else rows[(page - 1) * PAGE_SIZE: page * PAGE_SIZE]
-    return BoardPage(rows=shown, total=len(rows), counts=counts, page=page, pages=pages, show_all=show_all)
+    shown = lines.rows() if show_all else lines.rows((page - 1) * PAGE_SIZE, page * PAGE_SIZE)
+    return BoardPage(rows=shown, total=total, counts=lines.counts(), page=page, pages=pages, show_all=show_all)
 
 
 def board_csv(rows: list[Standing]) -> str:

@@ -24,7 +24,7 @@ from sqlalchemy import String, bindparam, delete, exists, insert, select, text, 
 from sqlalchemy.orm import Session
 
 from server.compute.currency import KeptFacts, kept_facts
-from server.currency import evaluation
+from server.currency import board_cache, evaluation
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule, KeptStanding
 from server.fleet import hooks as fleet_hooks
@@ -141,6 +141,7 @@ def refresh(session: Session, *, person_ids: Iterable[int] | None = None, rule_i
     if person_ids == [] or rule_ids == []:
         return 0
     lock_kept_rows(session, person_ids)
+    board_cache.changed(session)
     gone = delete(KeptStanding)
     if person_ids is not None:
         gone = gone.where(KeptStanding.pilot_id.in_(person_ids))
@@ -233,6 +234,7 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
                                                       + added[rule.id], as_of=today, **_window(rule)), today)
             for rule in changed]
     # One executemany however many rules moved (psycopg pipelines it: one round trip, not one per row).
+    board_cache.changed(session)
     table = KeptStanding.__table__
     session.connection().execute(
         update(table).where(table.c.pilot_id == bindparam("key_pilot"), table.c.rule_id == bindparam("key_rule"))

@@ -64,3 +64,15 @@ class KeptStanding(Base):
     still_counting: Mapped[int] = mapped_column(Integer, default=0)
     window_count: Mapped[int] = mapped_column(Integer, default=0)
     counted_through: Mapped[date | None] = mapped_column(Date)
+
+
+class BoardVersion(Base):
+    """One row: a token written anew, in the transaction itself, by every change that can move what
+    the readiness board shows (kept rows, people, their roles, rules, helicopter types). Today's board
+    kept in memory (`server/currency/board_cache.py`) is good while the token is the one it was made
+    under; random rather than counted, so a restored backup can never bring back a token in use."""
+
+    __tablename__ = "currency_board_version"
+
+    id: Mapped[int] = mapped_column(Integer, primary_key=True)  # always 1
+    token: Mapped[str] = mapped_column(String(32))

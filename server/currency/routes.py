@@ -6,7 +6,7 @@ from fastapi.responses import RedirectResponse, Response
 from sqlalchemy import select
 
 from server.compute.currency import format_date
-from server.currency import board, feeds
+from server.currency import board, board_cache, feeds
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
 from server.currency.schemas import RuleCreate
@@ -45,6 +45,19 @@ def _board_filters(role: str | None, rule_id: str | None, status: str | None) ->
     }
 
 
+def _board_grid(request: Request, db, day: date, filters: dict) -> tuple[list[CurrencyRule], board.Grid]:
+    """The board's columns and lines; today's lines are kept while nothing on them changes (`board_cache`).
+
+    Only plain values are kept (no ORM object outlives its session): the columns are read again."""
+    if day != people.school_today(db):
+        return board.board_grid(db, as_of=day, **filters)
+    lines = board_cache.kept_for_today(request.app, db, ("grid", day, *sorted(filters.items())),
+                                       lambda: board.grid(board.board(db, as_of=day, role=filters["role"],
+                                                                      rule_id=filters["rule_id"]),
+                                                          status=filters["status"]))
+    return board.grid_columns(db, lines), lines
+
+
 @router.get("/currency", name="readiness_board")
 def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: str | None = None,
                     role: str | None = None, rule_id: str | None = None, status: str | None = None,
@@ -52,7 +65,7 @@ def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: s
     """One row per active pilot, one column per rule, soonest trouble first."""
     day, message = _as_of(db, as_of)
     filters = _board_filters(role, rule_id, status)
-    columns, lines = board.board_grid(db, as_of=day, **filters)
+    columns, lines = _board_grid(request, db, day, filters)
     shown = board.board_page(lines, page=page, show_all=show == "all")
     query = {"as_of": day.isoformat(), **{k: v for k, v in filters.items() if v is not None}}
     return render(request, "currency/board.html", {
@@ -63,15 +76,17 @@ def readiness_board(request: Request, db: DbSession, person: SetupUser, as_of: s
         "filters": filters, "rules": rules_service.list_rules(db), "roles": ROLES, "statuses": STATUS_CHOICES,
         "page": shown.page, "pages": shown.pages, "show_all": shown.show_all, "query": query,
         "first_index": shown.first_index,
+        # Each pilot's page address is this and the id: one url_for, not one per row (each walks the routes).
+        "person_page": str(request.url_for("person_currency_page", person_id=0)).removesuffix("0"),
     }, fragment="currency/_board.html")
 
 
 @router.get("/currency/board.csv", name="readiness_board_csv")
-def readiness_board_csv(db: DbSession, person: SetupUser, as_of: str | None = None, role: str | None = None,
-                        rule_id: str | None = None, status: str | None = None):
+def readiness_board_csv(request: Request, db: DbSession, person: SetupUser, as_of: str | None = None,
+                        role: str | None = None, rule_id: str | None = None, status: str | None = None):
     """Every cell of the board as shown (same filters, every page), one line per pilot and rule."""
     day, _ = _as_of(db, as_of)
-    columns, lines = board.board_grid(db, as_of=day, **_board_filters(role, rule_id, status))
+    columns, lines = _board_grid(request, db, day, _board_filters(role, rule_id, status))
     return Response(board.board_csv(board.cells_of(lines, columns)), media_type="text/csv; charset=utf-8", headers={
         "Content-Disposition": f'attachment; filename="readiness-{day.isoformat()}.csv"', "Cache-Control": "no-store"})
 
