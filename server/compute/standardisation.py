@@ -12,7 +12,6 @@ import statistics
 from collections.abc import Hashable, Iterable, Mapping
 from dataclasses import dataclass
 
-from scipy.stats import t as student_t
 
 AGREE, LENIENT, STRICT = "agree", "lenient", "strict"
 OUTCOMES = (AGREE, LENIENT, STRICT)
@@ -59,6 +58,7 @@ def mean_ci95(values: Iterable[float]) -> tuple[float | None, tuple[float, float
 
 def t_critical(degrees_of_freedom: int, confidence: float = CONFIDENCE) -> float:
     """The two-sided critical value of Student's t."""
+    from scipy.stats import t as student_t  # here: scipy.stats costs every process half a second at start
     return float(student_t.ppf(0.5 + confidence / 2, degrees_of_freedom))
 
 

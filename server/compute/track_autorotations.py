@@ -14,7 +14,6 @@ from dataclasses import dataclass, field
 from datetime import timedelta
 
 import numpy as np
-from scipy.signal import savgol_filter
 
 from server.compute.track_files import KT_PER_MS, Track
 from server.compute.track_geo import (
@@ -195,6 +194,8 @@ class _Series:
     """The track on a uniform time grid, smoothed."""
 
     def __init__(self, track: Track, settings: DetectionSettings, origin: tuple[float, float]):
+        from scipy.signal import savgol_filter  # here, not at the top: scipy.signal takes a second to import, and
+        # every command and app process would pay it at start whether it reads a track or not
         rate = track.sample_rate_hz
         self.dt = 1.0 / rate
         self.t = np.arange(0.0, float(track.t_s[-1]) + 1e-9, self.dt)

@@ -16,7 +16,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import date
 
-from scipy.stats import theilslopes
 
 DEFAULT_LAMBDA = 0.3
 SLOPE_WINDOW = 20  # DESIGN 4.5: Theil-Sen over the last 20 attempts
@@ -83,6 +82,7 @@ def theil_sen_slope(values: Sequence[float]) -> float | None:
     recent = list(values)[-SLOPE_WINDOW:]
     if len(recent) < 2:
         return None
+    from scipy.stats import theilslopes  # here: scipy.stats costs every process half a second at start
     return float(theilslopes(recent, range(len(recent))).slope)
 
 

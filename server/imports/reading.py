@@ -14,7 +14,6 @@ import io
 import zipfile
 from dataclasses import dataclass, field
 
-from openpyxl import load_workbook
 
 from server.errors import Invalid
 
@@ -117,6 +116,7 @@ def _numbered(rows):
 
 
 def _read_xlsx(data: bytes) -> Table:
+    from openpyxl import load_workbook  # here: every command and app process would import it at start
     try:
         workbook = load_workbook(io.BytesIO(data), read_only=True, data_only=True)
     except (zipfile.BadZipFile, KeyError, OSError, ValueError) as error:

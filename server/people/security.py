@@ -1,4 +1,5 @@
 """Password hashing (Argon2id) and random tokens."""
+import functools
 import hashlib
 import secrets
 
@@ -8,8 +9,13 @@ from argon2.exceptions import InvalidHashError, VerificationError
 # argon2-cffi's defaults (Argon2id, 64 MiB, 3 passes, 4 lanes) are above the OWASP ASVS floor.
 PRODUCTION_HASHER = PasswordHasher()
 _hasher = PRODUCTION_HASHER
-# Verified against when the email is unknown, so a refusal takes as long either way.
-_DUMMY_HASH = PRODUCTION_HASHER.hash("not-a-real-password")
+
+
+@functools.cache
+def _dummy_hash() -> str:
+    """Verified against when the email is unknown, so a refusal takes as long either way. Made on first
+    use, not at import: every command would otherwise pay a production-cost hash at start."""
+    return PRODUCTION_HASHER.hash("not-a-real-password")
 
 
 def hash_password(password: str) -> str:
@@ -18,7 +24,7 @@ def hash_password(password: str) -> str:
 
 def verify_password(password_hash: str | None, password: str) -> bool:
     try:
-        return _hasher.verify(password_hash or _DUMMY_HASH, password) and password_hash is not None
+        return _hasher.verify(password_hash or _dummy_hash(), password) and password_hash is not None
     except (VerificationError, InvalidHashError):
         return False
 
