@@ -118,10 +118,16 @@ def summaries_statement(rules: Sequence[CurrencyRule], *, as_of: date, pilot_ids
 _SORTIE_DAYS: dict[tuple, object] = {}  # statements by the rules' content: built once, not per signature
 
 
+def rules_key(rules: Sequence[CurrencyRule]) -> tuple:
+    """What decides a statement built from these rules' conditions (rules, or rows of the rules table)."""
+    return tuple((rule.id, *(repr(getattr(rule, name)) for name in RULE_CONDITION_FIELDS)) for rule in rules)
+
+
+
 def sortie_days_statement(rules: Sequence[CurrencyRule]):
     """Rows of (day, per-rule count) of the attempts of the sortie bound as `sortie_id` that can count (not
     taken over): what a new signature adds to its pilot's kept state (`server/currency/kept.py`)."""
-    key = tuple((rule.id, *(repr(getattr(rule, name)) for name in RULE_CONDITION_FIELDS)) for rule in rules)
+    key = rules_key(rules)
     statement = _SORTIE_DAYS.get(key)
     if statement is None:
         per_day = [func.sum(case((rule_condition(rule), 1), else_=0)).label(f"n{i}") for i, rule in enumerate(rules)]

@@ -207,16 +207,18 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
 
     Merging with the kept dates and pruning as of today gives what a recomputation would: a date pruned
     on the day a row was written is older than the window and than min_count newer dates, and stays so.
-    False when the pilot has no kept row (never built, or no rule applies): then the caller recomputes."""
-    rules = rules_service.list_rules(session)
+    False when the pilot has no kept row (never built, or no rule applies): then the caller recomputes.
+
+    Every signature runs this, so it stays lean: the rules as plain rows, and both statements built once
+    per set of rules rather than per call (building and keying a statement of a dozen rule conditions
+    cost more than running it)."""
+    rules = session.connection().execute(_ACTIVE_RULES).all()
     if not rules:
         return True
     lock_kept_rows(session, [sortie.pilot_id])
     # One round trip: the pilot's kept rows, each beside the sortie's per-rule counts (one day per sortie).
-    days = evaluation.sortie_days_statement(rules).subquery("days")
-    found = session.connection().execute(
-        select(KeptStanding.rule_id, KeptStanding.dates, days).select_from(KeptStanding)
-        .outerjoin(days, true()).where(KeptStanding.pilot_id == sortie.pilot_id), {"sortie_id": sortie.id}).all()
+    found = session.connection().execute(_rows_with_sortie_days(rules),
+                                         {"sortie_id": sortie.id, "pilot_id": sortie.pilot_id}).all()
     if not found:
         return False
     stored = {row[0]: row[1] for row in found}
@@ -225,7 +227,7 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     added: dict[int, list[date]] = defaultdict(list)
     for row in found:
         if row[2] is not None:
-            added[row[0]].extend([row[2]] * int(row[at[row[0]]] or 0))
+            added[row[0]].extend([as_date(row[2])] * int(row[at[row[0]]] or 0))
     changed = [rule for rule in wanted if added[rule.id]]
     if not changed:
         return True
@@ -235,12 +237,33 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
             for rule in changed]
     # One executemany however many rules moved (psycopg pipelines it: one round trip, not one per row).
     board_cache.changed(session)
-    table = KeptStanding.__table__
-    session.connection().execute(
-        update(table).where(table.c.pilot_id == bindparam("key_pilot"), table.c.rule_id == bindparam("key_rule"))
-        .values({name: bindparam(name) for name in rows[0] if name not in ("pilot_id", "rule_id")}),
-        [row | {"key_pilot": row["pilot_id"], "key_rule": row["rule_id"]} for row in rows])
+    session.connection().execute(_UPDATE_KEPT_ROW,
+                                 [row | {"key_pilot": row["pilot_id"], "key_rule": row["rule_id"]} for row in rows])
     return True
+
+
+_ACTIVE_RULES = select(CurrencyRule.__table__).where(CurrencyRule.active).order_by(CurrencyRule.name, CurrencyRule.id)
+_KEPT = KeptStanding.__table__
+_UPDATE_KEPT_ROW = (update(_KEPT).where(_KEPT.c.pilot_id == bindparam("key_pilot"), _KEPT.c.rule_id == bindparam("key_rule"))
+                    .values({name: bindparam(name) for name in ("counted_on", "dates", "newest_on", "current_until",
+                                                                "still_counting", "window_count", "counted_through")}))
+_WITH_SORTIE_DAYS: dict[tuple, object] = {}
+
+
+def _rows_with_sortie_days(rules) -> object:
+    """The pilot's kept rows (bound `pilot_id`) beside the sortie's days (bound `sortie_id`), by the rules' content."""
+    key = evaluation.rules_key(rules)
+    statement = _WITH_SORTIE_DAYS.get(key)
+    if statement is None:
+        days = evaluation.sortie_days_statement(rules).subquery("days")
+        statement = (select(KeptStanding.rule_id, KeptStanding.dates, _as_read(days.c.flown_on),
+                            *[days.c[f"n{i}"] for i in range(len(rules))])
+                     .select_from(KeptStanding).outerjoin(days, true())
+                     .where(KeptStanding.pilot_id == bindparam("pilot_id")))
+        if len(_WITH_SORTIE_DAYS) > 64:
+            _WITH_SORTIE_DAYS.clear()
+        _WITH_SORTIE_DAYS[key] = statement
+    return statement
 
 
 def after_signing(session: Session, sorties: Sequence[Sortie]) -> None:

@@ -360,7 +360,9 @@ def school_zone(session: Session) -> ZoneInfo:
 
     Read only: a request that only needs the date (logging an attempt) writes no school row.
     """
-    timezone = session.scalar(_SCHOOL_TIMEZONE)
+    # Through the connection: a plain read, without the ORM's statement handling (every attempt logged
+    # and every signature asks for the school's date).
+    timezone = session.connection().scalar(_SCHOOL_TIMEZONE)
     return ZoneInfo(timezone or NEW_SCHOOL_TIMEZONE)
 
 
