@@ -107,7 +107,8 @@ def readiness_board(request: Request, db: DbSession, person: SetupApiUser, as_of
 
     def made() -> tuple[bytes, bytes]:
         body = board_json(as_of, board.board(db, as_of=as_of, role=role, rule_id=rule_id, status=status))
-        return body, gzip.compress(body, compresslevel=6)
+        # Level 1: a third of level 6's time for a board that may be made afresh after every change.
+        return body, gzip.compress(body, compresslevel=1)
 
     if as_of != today:
         return Response(made()[0], media_type="application/json")  # the app's GZip middleware compresses it
@@ -121,22 +122,37 @@ def readiness_board(request: Request, db: DbSession, person: SetupApiUser, as_of
 def board_json(as_of: date, cells: board.Cells) -> bytes:
     """BoardRead as bytes, from plain values, without a model or a dict per row (thousands on a large
     school's board): each person's fields and each distinct status's fields are serialised once, by
-    pydantic's own encoder, and every row joins the two."""
+    pydantic's own encoder, and every row joins the two, in one join of the whole body."""
     people_parts = {pid: to_json({"person_id": pid, "name": name, "roles": roles})[1:-1]
                     for pid, (name, roles) in cells.people.items()}
-    status_parts: dict[int, bytes] = {}  # by id(status): cells with the same facts share a status object
-    rows = []
+    out = [b'{"as_of":', to_json(as_of), b',"rows":[']
     for cell in cells.cells:
-        status = cell[5]
-        part = status_parts.get(id(status))
-        if part is None:
-            rule = cells.rules[cell[4]]
-            part = status_parts[id(status)] = to_json({
-                "rule_id": rule[0], "rule_name": rule[1], "status": status.status,
-                "current_until": status.current_until, "qualifying_count": status.qualifying_count,
-                "needed": status.needed, "remedy": status.remedy})[1:-1]
-        rows.append(b"{" + people_parts[cell[3]] + b"," + part + b"}")
-    return b'{"as_of":' + to_json(as_of) + b',"rows":[' + b",".join(rows) + b"]}"
+        rule = cells.rules[cell[4]]
+        out += (b"{", people_parts[cell[3]], b",", _status_part(cell[5], rule), b"},")
+    if cells.cells:
+        out[-1] = b"}"  # the last row: no comma after it
+    out.append(b"]}")
+    return b"".join(out)
+
+
+# Statuses are shared by every cell with the same facts under one rule, and kept for the day by the
+# board (`board._statuses_of`): their serialised fields are kept beside them, by identity, so a board
+# made afresh after a change serialises only what is new. The status is held too, so its id stays its own.
+_STATUS_PARTS: dict[tuple[int, int, str], tuple[object, bytes]] = {}
+
+
+def _status_part(status, rule: tuple[int, str, int]) -> bytes:
+    key = (id(status), rule[0], rule[1])
+    found = _STATUS_PARTS.get(key)
+    if found is not None and found[0] is status:
+        return found[1]
+    if len(_STATUS_PARTS) > 200_000:
+        _STATUS_PARTS.clear()
+    part = to_json({"rule_id": rule[0], "rule_name": rule[1], "status": status.status,
+                    "current_until": status.current_until, "qualifying_count": status.qualifying_count,
+                    "needed": status.needed, "remedy": status.remedy})[1:-1]
+    _STATUS_PARTS[key] = (status, part)
+    return part
 
 
 @router.get("/calendar-feeds", response_model=list[FeedRead])

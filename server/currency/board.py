@@ -204,13 +204,15 @@ def kept_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
     who = out.people
     names = _ranks({pid: name.casefold() for pid, (name, _) in who.items()})
     rule_places = _ranks({rule.id: rule.name for rule in rules})
+    # What else decides a status: the same facts under a rule since edited must not find the old one.
+    rule_params = {rule.id: (rule.min_count, rule.warn_days, *words[rule.id]) for rule in rules}
     rows = kept.today_rows(session, rule_ids=list(by_id), person_ids=person_ids)
     if not rows:
         return out
     today = as_of.isoformat() if isinstance(rows[0][2], str) else as_of
     cells, reread = out.cells, []
     append = cells.append
-    statuses: dict[tuple, tuple[int, CurrencyStatus]] = {}  # the same facts under the same rule: one status
+    statuses = _statuses_of(as_of)
     day = kept.as_date
     for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in rows:
         if counted_on > today:
@@ -222,7 +224,7 @@ def kept_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
         if (newest_on is not None and newest_on > today) or (through is not None and through < today):
             reread.append((pilot_id, rule_id))
             continue
-        key = (rule_id, current_until, count, newest_on is not None, still)
+        key = (rule_id, current_until, count, newest_on is not None, still, rule_params[rule_id])
         found = statuses.get(key)
         if found is None:
             rule = by_id[rule_id]
@@ -241,6 +243,21 @@ def kept_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
         append((status_order(status), names[pilot_id], rule_places[rule_id], pilot_id, rule_id, status))
     cells.sort()
     return out
+
+
+# The statuses made for one day's boards, by rule and facts: a board made afresh after a change (one
+# pilot signed, say) finds nearly every status made already. Cells with the same facts under the same
+# rule share one CurrencyStatus (board_json writes each distinct one once). A new day starts anew.
+_STATUSES: dict[date, dict[tuple, tuple[int, CurrencyStatus]]] = {}
+_MOST_STATUSES = 200_000  # a bound on memory: thousands are made per board
+
+
+def _statuses_of(as_of: date) -> dict[tuple, tuple[int, CurrencyStatus]]:
+    found = _STATUSES.get(as_of)
+    if found is None or len(found) > _MOST_STATUSES:
+        _STATUSES.clear()
+        found = _STATUSES[as_of] = {}
+    return found
 
 
 def board(session: Session, *, as_of: date, role: str | None = None, rule_id: int | None = None,

@@ -59,6 +59,19 @@ def test_rule_edits_and_removal_show_at_once(chief_client, world, db, rule):
     assert "Touchdowns" not in chief_client.get("/currency").text
 
 
+def test_a_rule_edit_that_leaves_the_facts_alone_still_changes_the_status(chief_client, world, db, rule):
+    """Statuses are kept for the day by their facts: a longer warning changes the status of the same facts."""
+    make_sortie(db, world, attempts=1, sign=True, flown_at=_recently(db, 3))
+    key = ("Sam Student", RULE["name"])
+    assert _cells(chief_client)[key][0] == "current"  # current for 27 more days, warned 7 days ahead
+    assert chief_client.api("PATCH", f"/api/v1/rules/{rule['id']}", json={"warn_days": 28}).status_code == 200
+    status, needed, remedy = _cells(chief_client)[key]
+    assert (status, needed) == ("due_soon", 0) and remedy.startswith("Due soon")
+    page = parsed(chief_client.get("/currency"))
+    sam = next(row for row in cell_texts(page.find("table", id="board-table")) if row[0].startswith("Sam"))
+    assert sam[1].startswith("Due soon")
+
+
 def test_roles_names_activity_and_type_names_show_at_once(chief_client, world, db, rule):
     assert ("Ivo Instructor", RULE["name"]) not in _cells(chief_client)
     chief = db.get(Person, world.chief.id)
