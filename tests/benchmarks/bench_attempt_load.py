@@ -15,8 +15,8 @@ Rounds alternate between the three; the figures are the median of the rounds. Th
 attempts at 0.7 or more of the bare endpoint's throughput and a p99 at most 2 times the bare one's.
 
 PostgreSQL (`--postgres URL`): a database of its own (flarebook_bench) is made beside the URL's and
-dropped at the end; for each worker count uvicorn runs that many processes on it and wrk logs attempts
-as above. The goal: 4 processes log at least 1.5 times what one does. Either way the audit chain must
+dropped at the end; in each round, for each worker count in turn, uvicorn runs that many processes on
+it and wrk logs attempts as above. The goal: 4 processes log at least 1.5 times what one does. Either way the audit chain must
 verify afterwards (with several processes appending to it at once on PostgreSQL).
 """
 import argparse
@@ -259,14 +259,16 @@ def postgres_run(args, folder: Path) -> bool:
     try:
         url, token, sortie_ids = prepare(url, args.connections)
         script = lua_script(folder, "attempt", token, sortie_ids)
-        summary, errors = {}, 0
-        for workers in args.workers:
-            with Server(url, workers) as server:
-                runs = []
-                for _ in range(args.rounds):
-                    runs.append(run_wrk(server.port, script, args.seconds, args.connections))
-                    print(f"{workers} workers", runs[-1], flush=True)
-            summary[workers], errors = median_figures(runs), errors + error_count(runs)
+        # Rounds alternate between the settings (a fresh server each run), as on SQLite: what drifts
+        # during the benchmark (the tables growing, the machine) falls on every setting alike.
+        runs: dict[int, list[dict]] = {workers: [] for workers in args.workers}
+        for _ in range(args.rounds):
+            for workers in args.workers:
+                with Server(url, workers) as server:
+                    runs[workers].append(run_wrk(server.port, script, args.seconds, args.connections))
+                print(f"{workers} workers", runs[workers][-1], flush=True)
+        summary = {workers: median_figures(found) for workers, found in runs.items()}
+        errors = sum(error_count(found) for found in runs.values())
         chain = chain_report(url)
     finally:
         with admin.connect() as conn:
