@@ -81,6 +81,14 @@
       var input = form.querySelector('[name="' + name + '"]');
       if (!input || String(input.value) === String(filled[name])) return;
       if (lastTyped(input) > pastedAt) { kept = true; return; }  // typed after the METAR: the instructor's
+      if (input === document.activeElement) {
+        // The instructor is in this field: a value written under their finger would have what they type
+        // added to it ("22" then "19" reads "2219"). Filled when they leave it, if they typed nothing.
+        input.addEventListener("blur", function () {
+          if (lastTyped(input) <= pastedAt) setValue(input, filled[name]);
+        }, { once: true });
+        return;
+      }
       setValue(input, filled[name]);
     });
     if (kept) {

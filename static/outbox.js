@@ -302,6 +302,11 @@
     var elt = event.detail.elt;
     if (elt && elt.closest && elt.closest(".attempts-section, #sortie-details")) cachePage();
   });
+  // A form that sends the page away (discarding the draft, say) may remove the sheet it shows: a copy
+  // asked for after that would only meet a 404, so none is asked for once the page is on its way out.
+  function forgetPendingCopy() { clearTimeout(cacheTimer); }
+  document.addEventListener("submit", forgetPendingCopy, true);
+  window.addEventListener("beforeunload", forgetPendingCopy);
 
   window.addEventListener("online", function () { showConnection(); replay(); });
   window.addEventListener("offline", showConnection);

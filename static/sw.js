@@ -4,7 +4,7 @@
 // signal is back. Nothing here reaches another host.
 importScripts("/static/outbox.js");
 
-var STATIC_CACHE = "flarebook-static-2";
+var STATIC_CACHE = "flarebook-static-3";
 var SHEET_CACHE = "flarebook-sheets";
 var STATIC_FILES = ["/static/app.css", "/static/app.js", "/static/outbox.js", "/static/vendor/htmx-2.0.11.min.js"];
 var SHEET_PATH = /^\/sorties\/\d+$/;

@@ -76,6 +76,33 @@ def test_a_field_typed_after_the_metar_is_not_overwritten_by_it(page, world):
     expect(oat).to_have_value("19")
 
 
+def test_a_field_the_instructor_is_in_when_the_metar_answers_keeps_what_they_type(page, world):
+    """The answer to a pasted METAR lands while the instructor is already in the temperature field: what
+    they type then is the whole value, not added to the METAR's (22 °C then "19" must not read 2219)."""
+    sign_in(page, world.instructor.email)
+    fill_start_form(page, world)
+    page.get_by_label(re.compile("METAR")).fill(METAR)
+    oat = page.get_by_label("Outside air temperature")
+    oat.focus()  # tapped before the answer comes
+    expect(page.get_by_label("Wind speed")).to_have_value("12")  # the answer has come
+    oat.press_sequentially("19")
+    expect(oat).to_have_value("19")
+    page.get_by_label("Wind speed").focus()
+    expect(oat).to_have_value("19")  # left after typing: still the instructor's
+
+
+def test_a_field_left_untyped_after_the_metar_answered_gets_the_metar_value(page, world):
+    sign_in(page, world.instructor.email)
+    fill_start_form(page, world)
+    page.get_by_label(re.compile("METAR")).fill(METAR)
+    oat = page.get_by_label("Outside air temperature")
+    oat.focus()
+    expect(page.get_by_label("Wind speed")).to_have_value("12")
+    expect(oat).to_have_value("")  # not written under the instructor's finger
+    page.get_by_label("Wind speed").focus()
+    expect(oat).to_have_value("22")  # METAR 22/10: 22 °C, filled once the field is left untyped
+
+
 def test_a_weight_far_from_the_reference_is_warned_about_and_taken_once_confirmed(page, world, db):
     sign_in(page, world.instructor.email)
     fill_start_form(page, world)
