@@ -123,7 +123,6 @@ def rules_key(rules: Sequence[CurrencyRule]) -> tuple:
     return tuple((rule.id, *(repr(getattr(rule, name)) for name in RULE_CONDITION_FIELDS)) for rule in rules)
 
 
-
 def sortie_days_statement(rules: Sequence[CurrencyRule]):
     """Rows of (day, per-rule count) of the attempts of the sortie bound as `sortie_id` that can count (not
     taken over): what a new signature adds to its pilot's kept state (`server/currency/kept.py`)."""

@@ -221,7 +221,7 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     Every signature runs this, so it stays lean: the rules as plain rows, and both statements built once
     per set of rules rather than per call (building and keying a statement of a dozen rule conditions
     cost more than running it)."""
-    rules = session.connection().execute(_ACTIVE_RULES).all()
+    rules = rules_service.list_rule_rows(session)
     if not rules:
         return True
     lock_kept_rows(session, [sortie.pilot_id])
@@ -251,11 +251,9 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
     return True
 
 
-_ACTIVE_RULES = select(CurrencyRule.__table__).where(CurrencyRule.active).order_by(CurrencyRule.name, CurrencyRule.id)
 _KEPT = KeptStanding.__table__
 _UPDATE_KEPT_ROW = (update(_KEPT).where(_KEPT.c.pilot_id == bindparam("key_pilot"), _KEPT.c.rule_id == bindparam("key_rule"))
-                    .values({name: bindparam(name) for name in ("counted_on", "dates", "newest_on", "current_until",
-                                                                "still_counting", "window_count", "counted_through")}))
+                    .values({c.name: bindparam(c.name) for c in _KEPT.c if c.name not in ("pilot_id", "rule_id")}))
 _WITH_SORTIE_DAYS: dict[tuple, object] = {}
 
 

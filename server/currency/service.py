@@ -31,8 +31,17 @@ def require_chief(actor: Person) -> None:
 
 
 def list_rules(session: Session) -> list[CurrencyRule]:
-    return list(session.scalars(select(CurrencyRule).where(CurrencyRule.active).order_by(CurrencyRule.name,
-                                                                                           CurrencyRule.id)))
+    return list(session.scalars(select(CurrencyRule).where(CurrencyRule.active).order_by(*_RULE_ORDER)))
+
+
+_RULE_ORDER = (CurrencyRule.name, CurrencyRule.id)
+_RULE_ROWS = select(CurrencyRule.__table__).where(CurrencyRule.active).order_by(*_RULE_ORDER)
+
+
+def list_rule_rows(session: Session) -> list:
+    """The rules of `list_rules` as plain rows (same attributes, no ORM objects): for a caller on every
+    signature, where loading a dozen objects costs more than the rest of its work."""
+    return session.connection().execute(_RULE_ROWS).all()
 
 
 def get_rule(session: Session, *, rule_id: int) -> CurrencyRule:
