@@ -86,18 +86,22 @@
         // added to it ("22" then "19" reads "2219"). Filled when they leave it, if they typed nothing.
         input.addEventListener("blur", function () {
           if (lastTyped(input) <= pastedAt) setValue(input, filled[name]);
+          else noteKept(readout);
         }, { once: true });
         return;
       }
       setValue(input, filled[name]);
     });
-    if (kept) {
-      var note = document.createElement("p");
-      note.className = "hint";
-      note.textContent = "Fields typed in after the METAR keep what you typed.";
-      readout.appendChild(note);
-    }
+    if (kept) noteKept(readout);
   });
+
+  function noteKept(readout) {
+    if (!readout.isConnected || readout.querySelector(".kept-typed")) return;
+    var note = document.createElement("p");
+    note.className = "hint kept-typed";
+    note.textContent = "Fields typed in after the METAR keep what you typed.";
+    readout.appendChild(note);
+  }
 
   document.addEventListener("change", function (event) {
     // The site sets the field elevation, so picking another one refreshes the density altitude too.

@@ -89,6 +89,7 @@ def test_a_field_the_instructor_is_in_when_the_metar_answers_keeps_what_they_typ
     expect(oat).to_have_value("19")
     page.get_by_label("Wind speed").focus()
     expect(oat).to_have_value("19")  # left after typing: still the instructor's
+    expect(page.locator("#conditions-readout")).to_contain_text("Fields typed in after the METAR keep what you typed.")
 
 
 def test_a_field_left_untyped_after_the_metar_answered_gets_the_metar_value(page, world):
