@@ -121,24 +121,36 @@ def readiness_board(request: Request, db: DbSession, person: SetupApiUser, as_of
 
 def board_json(as_of: date, cells: board.Cells) -> bytes:
     """BoardRead as bytes, from plain values, without a model or a dict per row (thousands on a large
-    school's board): each person's fields and each distinct status's fields are serialised once, by
-    pydantic's own encoder, and every row joins the two, in one join of the whole body."""
-    people_parts = {pid: to_json({"person_id": pid, "name": name, "roles": roles})[1:-1]
-                    for pid, (name, roles) in cells.people.items()}
-    out = [b'{"as_of":', to_json(as_of), b',"rows":[']
+    school's board): each row's fields are serialised once, by pydantic's own encoder, and kept beside
+    the cell (`_row_part`), so a board made afresh after a change serialises only the cells it made anew."""
+    rows = []
+    people_parts: dict[int, bytes] = {}
     for cell in cells.cells:
-        rule = cells.rules[cell[4]]
-        out += (b"{", people_parts[cell[3]], b",", _status_part(cell[5], rule), b"},")
-    if cells.cells:
-        out[-1] = b"}"  # the last row: no comma after it
-    out.append(b"]}")
-    return b"".join(out)
+        found = _ROW_PARTS.get(id(cell))
+        rows.append(found[1] if found is not None and found[0] is cell else _row_part(cell, cells, people_parts))
+    return b"".join((b'{"as_of":', to_json(as_of), b',"rows":[', b",".join(rows), b"]}"))
 
 
-# Statuses are shared by every cell with the same facts under one rule, and kept for the day by the
-# board (`board._statuses_of`): their serialised fields are kept beside them, by identity, so a board
-# made afresh after a change serialises only what is new. The status is held too, so its id stays its own.
+# Today's cells are kept between boards (`server/currency/today_cells.py`) while the people and rules
+# they were made for stand, and a cell is shown only with those: each row's bytes are kept by the cell's
+# identity (the cell is held too, so its id stays its own). Statuses are shared by every cell with the
+# same facts under one rule (`board._statuses_of`): their fields are serialised once per status.
+_ROW_PARTS: dict[int, tuple[tuple, bytes]] = {}
 _STATUS_PARTS: dict[tuple[int, int, str], tuple[object, bytes]] = {}
+_MOST_PARTS = 100_000  # a bound on memory: a large school's board has thousands of rows
+
+
+def _row_part(cell: board.Cell, cells: board.Cells, people_parts: dict[int, bytes]) -> bytes:
+    person_id = cell[3]
+    person = people_parts.get(person_id)
+    if person is None:
+        name, roles = cells.people[person_id]
+        person = people_parts[person_id] = to_json({"person_id": person_id, "name": name, "roles": roles})[1:-1]
+    part = b"".join((b"{", person, b",", _status_part(cell[5], cells.rules[cell[4]]), b"}"))
+    if len(_ROW_PARTS) > _MOST_PARTS:
+        _ROW_PARTS.clear()
+    _ROW_PARTS[id(cell)] = (cell, part)
+    return part
 
 
 def _status_part(status, rule: tuple[int, str, int]) -> bytes:
@@ -146,7 +158,7 @@ def _status_part(status, rule: tuple[int, str, int]) -> bytes:
     found = _STATUS_PARTS.get(key)
     if found is not None and found[0] is status:
         return found[1]
-    if len(_STATUS_PARTS) > 200_000:
+    if len(_STATUS_PARTS) > _MOST_PARTS:
         _STATUS_PARTS.clear()
     part = to_json({"rule_id": rule[0], "rule_name": rule[1], "status": status.status,
                     "current_until": status.current_until, "qualifying_count": status.qualifying_count,

@@ -13,7 +13,7 @@ from server.compute.currency import (
     status_from_facts,
 )
 from server.csv_export import csv_text
-from server.currency import evaluation, kept
+from server.currency import evaluation, kept, today_cells
 from server.currency import service as rules_service
 from server.currency.models import CurrencyRule
 from server.people import service as people
@@ -193,56 +193,86 @@ def kept_cells(session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
                person_ids: Sequence[int] | None = None) -> Cells | None:
     """The cells from the kept rows; None when a row was written after as_of (its dates may be pruned).
 
-    Thousands of rows: each is compared as the driver gives its dates (ISO text on SQLite, dates on
-    PostgreSQL, both ordered as the days are), and a status is made once per distinct set of facts."""
+    The whole board's cells are kept between boards and brought up to date from the rows written since
+    (`today_cells`); one person's are made from their rows."""
     out = _cells({pid: (name, roles) for pid, name, roles in kept.active_people(session, person_ids)}, rules)
     if not rules:
         return out
-    by_id = {rule.id: rule for rule in rules}
-    types = rules_service.type_names(session)
-    words = {rule.id: rules_service.describe(rule, types) for rule in rules}
-    who = out.people
-    names = _ranks({pid: name.casefold() for pid, (name, _) in who.items()})
-    rule_places = _ranks({rule.id: rule.name for rule in rules})
-    # What else decides a status: the same facts under a rule since edited must not find the old one.
-    rule_params = {rule.id: (rule.min_count, rule.warn_days, *words[rule.id]) for rule in rules}
-    rows = kept.today_rows(session, rule_ids=list(by_id), person_ids=person_ids)
-    if not rows:
-        return out
-    today = as_of.isoformat() if isinstance(rows[0][2], str) else as_of
-    cells, reread = out.cells, []
-    append = cells.append
-    statuses = _statuses_of(as_of)
-    day = kept.as_date
-    for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in rows:
-        if counted_on > today:
-            return None
-        name_place = names.get(pilot_id)
-        if name_place is None:
-            continue  # not active: refresh removes such rows in the same transaction; verify reports one left
-        # `facts_hold_on`, written out: a call per row would cost more than the rest of this loop.
-        if (newest_on is not None and newest_on > today) or (through is not None and through < today):
-            reread.append((pilot_id, rule_id))
-            continue
-        key = (rule_id, current_until, count, newest_on is not None, still, rule_params[rule_id])
-        found = statuses.get(key)
-        if found is None:
-            rule = by_id[rule_id]
-            status = status_from_facts(
-                as_of=as_of, current_until=day(current_until), count_in_window=count, ever=newest_on is not None,
-                still_counting=still, min_count=rule.min_count, warn_days=rule.warn_days,
-                describe=words[rule_id][0], describe_one=words[rule_id][1])
-            found = statuses[key] = (status_order(status), status)
-        append((found[0], name_place, rule_places[rule_id], pilot_id, rule_id, found[1]))
-    # A date left the window since the row was written, or a date ahead has come: count from its dates.
-    for (pilot_id, rule_id), dates in kept.dates_of(session, reread).items():
-        rule = by_id[rule_id]
-        status = evaluate_currency(dates, as_of=as_of, window_days=rule.window_days, window_months=rule.window_months,
-                                   min_count=rule.min_count, warn_days=rule.warn_days, describe=words[rule_id][0],
-                                   describe_one=words[rule_id][1])
-        append((status_order(status), names[pilot_id], rule_places[rule_id], pilot_id, rule_id, status))
-    cells.sort()
+    maker = _CellMaker(session, as_of=as_of, rules=rules, people=out.people)
+    if person_ids is None:
+        ordered = today_cells.cells(session, as_of=as_of, rule_ids=list(maker.by_id), rules_key=maker.rules_key,
+                                    people=out.people, make=maker.cells)
+    else:
+        made = maker.cells(kept.today_rows(session, rule_ids=list(maker.by_id), person_ids=person_ids))
+        ordered = None if made is None else sorted(made.values())
+    if ordered is None:
+        return None
+    out.cells = ordered
     return out
+
+
+class _CellMaker:
+    """Turns kept fact rows into cells for one day, rules and set of people.
+
+    Thousands of rows: each is compared as the driver gives its dates (ISO text on SQLite, dates on
+    PostgreSQL, both ordered as the days are), and a status is made once per distinct set of facts."""
+
+    def __init__(self, session: Session, *, as_of: date, rules: Sequence[CurrencyRule],
+                 people: dict[int, tuple[str, tuple[str, ...]]]):
+        self.session, self.as_of = session, as_of
+        self.by_id = {rule.id: rule for rule in rules}
+        types = rules_service.type_names(session)
+        self.words = {rule.id: rules_service.describe(rule, types) for rule in rules}
+        self.names = _ranks({pid: name.casefold() for pid, (name, _) in people.items()})
+        self.rule_places = _ranks({rule.id: rule.name for rule in rules})
+        # What else decides a status: the same facts under a rule since edited must not find the old one.
+        self.rule_params = {rule.id: (rule.min_count, rule.warn_days, *self.words[rule.id]) for rule in rules}
+        # What the cells were made for, beside the people: cells kept under it stand for the same rules.
+        self.rules_key = tuple((rule.id, rule.name, rule.window_days, rule.window_months, self.rule_params[rule.id])
+                               for rule in rules)
+
+    def cells(self, rows: Sequence[tuple]) -> dict[tuple[int, int], Cell] | None:
+        """The cells of these fact rows (`kept.FACT_COLUMNS`) by (pilot, rule), none for someone not shown;
+        None when a row was counted after the day (evaluate from the history instead)."""
+        as_of, by_id, words, names, rule_places, rule_params = (
+            self.as_of, self.by_id, self.words, self.names, self.rule_places, self.rule_params)
+        out: dict[tuple[int, int], Cell] = {}
+        if not rows:
+            return out
+        today = as_of.isoformat() if isinstance(rows[0][2], str) else as_of
+        reread = []
+        statuses = _statuses_of(as_of)
+        day = kept.as_date
+        for pilot_id, rule_id, counted_on, newest_on, current_until, still, count, through in rows:
+            if counted_on > today:
+                return None
+            name_place = names.get(pilot_id)
+            if name_place is None:
+                continue  # not active: refresh removes such rows in the same transaction; verify reports one left
+            # `facts_hold_on`, written out: a call per row would cost more than the rest of this loop.
+            if (newest_on is not None and newest_on > today) or (through is not None and through < today):
+                reread.append((pilot_id, rule_id))
+                continue
+            key = (rule_id, current_until, count, newest_on is not None, still, rule_params[rule_id])
+            found = statuses.get(key)
+            if found is None:
+                rule = by_id[rule_id]
+                status = status_from_facts(
+                    as_of=as_of, current_until=day(current_until), count_in_window=count,
+                    ever=newest_on is not None, still_counting=still, min_count=rule.min_count,
+                    warn_days=rule.warn_days, describe=words[rule_id][0], describe_one=words[rule_id][1])
+                found = statuses[key] = (status_order(status), status)
+            out[(pilot_id, rule_id)] = (found[0], name_place, rule_places[rule_id], pilot_id, rule_id, found[1])
+        # A date left the window since the row was written, or a date ahead has come: count from its dates.
+        for (pilot_id, rule_id), dates in kept.dates_of(self.session, reread).items():
+            rule = by_id[rule_id]
+            status = evaluate_currency(dates, as_of=as_of, window_days=rule.window_days,
+                                       window_months=rule.window_months, min_count=rule.min_count,
+                                       warn_days=rule.warn_days, describe=words[rule_id][0],
+                                       describe_one=words[rule_id][1])
+            out[(pilot_id, rule_id)] = (status_order(status), names[pilot_id], rule_places[rule_id], pilot_id,
+                                        rule_id, status)
+        return out
 
 
 # The statuses made for one day's boards, by rule and facts: a board made afresh after a change (one

@@ -16,6 +16,7 @@ that this module fills when it is imported; `server/models.py` imports it, so ev
 The board for today reads the rows (`today_rows`, `dates_of`); `flarebook currency verify` compares
 them with a full evaluation (`server/currency/kept_check.py`).
 """
+import time
 from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from datetime import date
@@ -65,9 +66,10 @@ def active_people(session: Session, person_ids: Sequence[int] | None = None) -> 
         query = query.where(Person.id.in_(list(person_ids)))
         role_query = role_query.where(PersonRole.person_id.in_(list(person_ids)))
     roles: dict[int, list[str]] = {}
-    for person_id, role in session.execute(role_query):
+    connection = session.connection()  # thousands of rows on a large school's board: not through the ORM
+    for person_id, role in connection.execute(role_query):
         roles.setdefault(person_id, []).append(role)
-    return [(pid, name, tuple(roles.get(pid, ()))) for pid, name in session.execute(query)]
+    return [(pid, name, tuple(roles.get(pid, ()))) for pid, name in connection.execute(query)]
 
 
 def applicable_pairs(session: Session, rules: Sequence[CurrencyRule],
@@ -104,8 +106,13 @@ def fresh_facts(session: Session, *, rules: Sequence[CurrencyRule], today: date,
             for pid, rule in pairs}
 
 
+def written_now_us() -> int:
+    """A kept row's write time: microseconds since 1970 by this process's clock (`today_cells` reads it)."""
+    return time.time_ns() // 1000
+
+
 def _row(pilot_id: int, rule_id: int, facts: KeptFacts, today: date) -> dict:
-    return {"pilot_id": pilot_id, "rule_id": rule_id, "counted_on": today,
+    return {"pilot_id": pilot_id, "rule_id": rule_id, "counted_on": today, "written_at_us": written_now_us(),
             "dates": [q.isoformat() for q in facts.dates_desc], "newest_on": facts.newest_on,
             "current_until": facts.current_until, "still_counting": facts.still_counting,
             "window_count": facts.window_count, "counted_through": facts.counted_through}
@@ -189,9 +196,12 @@ def rebuild_if_unbuilt(session: Session) -> int:
 
 # ---- reading, for the board of today -------------------------------------------------------------
 
-def today_rows(session: Session, *, rule_ids: Sequence[int], person_ids: Sequence[int] | None = None):
-    """The kept facts (FACT_COLUMNS order, dates through `as_date`) of these rules, of everyone or of the people named."""
-    query = select(*FACT_COLUMNS).where(KeptStanding.rule_id.in_(list(rule_ids)))
+def today_rows(session: Session, *, rule_ids: Sequence[int], person_ids: Sequence[int] | None = None,
+               with_write_times: bool = False):
+    """The kept facts (FACT_COLUMNS order, dates through `as_date`) of these rules, of everyone or of the
+    people named; with_write_times adds each row's `written_at_us` after them."""
+    columns = (*FACT_COLUMNS, KeptStanding.written_at_us) if with_write_times else FACT_COLUMNS
+    query = select(*columns).where(KeptStanding.rule_id.in_(list(rule_ids)))
     if person_ids is not None:
         query = query.where(KeptStanding.pilot_id.in_(list(person_ids)))
     return session.connection().execute(query).all()

@@ -1,7 +1,7 @@
 """Tables for currency rules, calendar feed links and the readiness board's kept state."""
 from datetime import date, datetime
 
-from sqlalchemy import JSON, Boolean, Date, Float, ForeignKey, Integer, String
+from sqlalchemy import JSON, BigInteger, Boolean, Date, Float, ForeignKey, Integer, String
 from sqlalchemy.orm import Mapped, mapped_column
 
 from server.db import Base
@@ -64,6 +64,11 @@ class KeptStanding(Base):
     still_counting: Mapped[int] = mapped_column(Integer, default=0)
     window_count: Mapped[int] = mapped_column(Integer, default=0)
     counted_through: Mapped[date | None] = mapped_column(Date)
+    # When the row was last written (microseconds since 1970, the writing process's clock): a board made
+    # afresh reads only the rows written since its last read (`server/currency/today_cells.py`). Not
+    # indexed: that read scans the rows for their count anyway, and an index on a column every signature
+    # rewrites would cost each signature an index entry per row (PostgreSQL could no longer update in place).
+    written_at_us: Mapped[int] = mapped_column(BigInteger, default=0, server_default="0")
 
 
 class BoardVersion(Base):

@@ -3,7 +3,8 @@
 Each step of a seeded random walk signs a sortie, amends one (attempts removed, changed or added, then
 signed), adds, edits or removes a rule, changes someone's roles or active flag, adds a person, or moves
 an aircraft to another type; after each, `flarebook currency verify`'s check finds no difference, and
-the board read from the kept rows on later days equals the set-wise evaluation of those days. Runs on
+the board read from the kept rows, today (from the cells of the step before and the rows written since)
+and on later days, equals the set-wise evaluation of those days. Runs on
 SQLite and, with FLAREBOOK_TEST_DATABASE_URL, on PostgreSQL.
 """
 import random
@@ -65,6 +66,9 @@ def _rule_data(rng: random.Random, type_ids: list[int], people_ids: list[int]) -
 def _assert_kept_matches(db, today):
     assert kept_check.differences(db) == []
     rules = rules_service.list_rules(db)
+    # Today's board: the cells kept from the step before, brought up to date from the rows written since.
+    assert [astuple(s) for s in board.standings(db, as_of=today)] == [
+        astuple(s) for s in board.evaluated_standings(db, as_of=today, rules=rules)]
     # Days ahead: facts still holding, counts that dropped a date (read from the kept dates), a sortie dated ahead.
     for ahead in (1, 9, 31, 95, 200, 800):
         day = today + timedelta(days=ahead)
