@@ -267,8 +267,15 @@ _UPDATE_KEPT_ROW = (update(_KEPT).where(_KEPT.c.pilot_id == bindparam("key_pilot
 _WITH_SORTIE_DAYS: dict[tuple, object] = {}
 
 
+# The rules list last seen (`list_rule_rows` gives the same one while the rules stand) with its statement.
+_LAST_RULES: list[tuple] = [(None, None)]
+
+
 def _rows_with_sortie_days(rules) -> object:
     """The pilot's kept rows (bound `pilot_id`) beside the sortie's days (bound `sortie_id`), by the rules' content."""
+    last_rules, last_statement = _LAST_RULES[0]
+    if last_rules is rules:
+        return last_statement
     key = evaluation.rules_key(rules)
     statement = _WITH_SORTIE_DAYS.get(key)
     if statement is None:
@@ -280,6 +287,7 @@ def _rows_with_sortie_days(rules) -> object:
         if len(_WITH_SORTIE_DAYS) > 64:
             _WITH_SORTIE_DAYS.clear()
         _WITH_SORTIE_DAYS[key] = statement
+    _LAST_RULES[0] = (rules, statement)
     return statement
 
 

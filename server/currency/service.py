@@ -1,5 +1,8 @@
 """Currency rules as data: create, edit, delete, and say in words what a rule asks for."""
-from sqlalchemy import select
+import json
+from collections import namedtuple
+
+from sqlalchemy import JSON, Text, cast, select
 from sqlalchemy.orm import Session
 
 from server.currency.models import CurrencyRule
@@ -35,13 +38,30 @@ def list_rules(session: Session) -> list[CurrencyRule]:
 
 
 _RULE_ORDER = (CurrencyRule.name, CurrencyRule.id)
-_RULE_ROWS = select(CurrencyRule.__table__).where(CurrencyRule.active).order_by(*_RULE_ORDER)
+_RULES_TABLE = CurrencyRule.__table__
+# The JSON columns as the text stored (PostgreSQL's driver would decode them): the rows are then plain
+# values, and the same rules read again find their decoded rows kept (`list_rule_rows`).
+_RULE_ROWS = select(*(cast(c, Text).label(c.name) if isinstance(c.type, JSON) else c for c in _RULES_TABLE.c)
+                    ).where(CurrencyRule.active).order_by(*_RULE_ORDER)
+_JSON_AT = tuple(i for i, c in enumerate(_RULES_TABLE.c) if isinstance(c.type, JSON))
+RuleRow = namedtuple("RuleRow", [c.name for c in _RULES_TABLE.c])
+_DECODED: dict[tuple, list] = {}
 
 
 def list_rule_rows(session: Session) -> list:
-    """The rules of `list_rules` as plain rows (same attributes, no ORM objects): for a caller on every
-    signature, where loading a dozen objects costs more than the rest of its work."""
-    return session.connection().execute(_RULE_ROWS).all()
+    """The rules of `list_rules` as plain rows (same attributes, no ORM objects; never to be changed): for
+    a caller on every signature, where loading a dozen objects, or decoding their JSON, costs more than
+    the rest of its work. The same rules as last time give the same list, so a caller may keep what it
+    built from them by the list's identity."""
+    raw = tuple(session.connection().execute(_RULE_ROWS).all())
+    found = _DECODED.get(raw)
+    if found is None:
+        found = [RuleRow(*(json.loads(v) if i in _JSON_AT and v is not None else v for i, v in enumerate(row)))
+                 for row in raw]
+        if len(_DECODED) > 64:
+            _DECODED.clear()
+        _DECODED[raw] = found
+    return found
 
 
 def get_rule(session: Session, *, rule_id: int) -> CurrencyRule:
