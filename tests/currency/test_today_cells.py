@@ -15,24 +15,13 @@ from server.currency import board, kept
 from server.currency import service as rules_service
 from server.currency.models import KeptStanding
 from server.currency.schemas import RuleCreate
-from server.logbook import service as logbook
-from server.logbook.schemas import AttemptFields, SortieCreate
 from server.people import service as people
 from server.people.models import Person
+from tests.support import make_sortie
 
 
 def _sign(db, world, days_ago: int) -> None:
-    chief = db.get(Person, world.chief.id)
-    sortie = logbook.create_sortie(db, actor=chief, data=SortieCreate(
-        flown_at=datetime.now(UTC) - timedelta(days=days_ago), aircraft_id=world.aircraft.id,
-        pilot_id=world.student.id, site_id=world.site.id, instructor_id=world.instructor.id, oat_c=15,
-        altimeter_hpa=1013.25))
-    logbook.add_attempt(db, actor=chief, sortie=sortie, data=AttemptFields(maneuver="straight_in",
-                                                                          termination="touchdown"))
-    db.flush()
-    db.refresh(sortie)
-    logbook.record_instructor_signature(db, actor=chief, sortie=sortie)
-    db.commit()
+    make_sortie(db, world, attempts=1, sign=True, flown_at=datetime.now(UTC) - timedelta(days=days_ago))
 
 
 def _student_cell(db, world, rule_id: int):
