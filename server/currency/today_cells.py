@@ -31,7 +31,7 @@ CHECKSUM_PRIME = 2_147_483_647
 # read by the next board; a later one (a long import, a writer waiting on locks) is caught by the
 # checksum, and every row is read again. A signature writes its rows milliseconds before it commits.
 MARGIN_US = 2_000_000
-KEPT_PER_DATABASE = 8  # days and sets of rules: today's board, one rule's column, the days tests look ahead
+KEPT_PER_DATABASE = 8  # days and sets of rules: the whole board, one rule's column, a day asked for ahead
 
 Key = tuple[int, int]  # (pilot id, rule id)
 Make = Callable[[Sequence[tuple]], dict[Key, tuple] | None]  # fact rows -> cells by key; None: evaluate instead
