@@ -264,30 +264,22 @@ def add_signed_sortie(session: Session, sortie: Sortie) -> bool:
 _KEPT = KeptStanding.__table__
 _UPDATE_KEPT_ROW = (update(_KEPT).where(_KEPT.c.pilot_id == bindparam("key_pilot"), _KEPT.c.rule_id == bindparam("key_rule"))
                     .values({c.name: bindparam(c.name) for c in _KEPT.c if c.name not in ("pilot_id", "rule_id")}))
-_WITH_SORTIE_DAYS: dict[tuple, object] = {}
-
-
-# The rules list last seen (`list_rule_rows` gives the same one while the rules stand) with its statement.
+# The rules list last seen with its statement: `list_rule_rows` gives the same list while the rules stand,
+# so a signature finds it by identity; rules changed build it again (around evaluation's own statement,
+# kept by the rules' content).
 _LAST_RULES: list[tuple] = [(None, None)]
 
 
 def _rows_with_sortie_days(rules) -> object:
-    """The pilot's kept rows (bound `pilot_id`) beside the sortie's days (bound `sortie_id`), by the rules' content."""
-    last_rules, last_statement = _LAST_RULES[0]
-    if last_rules is rules:
-        return last_statement
-    key = evaluation.rules_key(rules)
-    statement = _WITH_SORTIE_DAYS.get(key)
-    if statement is None:
+    """The pilot's kept rows (bound `pilot_id`) beside the sortie's days (bound `sortie_id`)."""
+    last_rules, statement = _LAST_RULES[0]
+    if last_rules is not rules:
         days = evaluation.sortie_days_statement(rules).subquery("days")
         statement = (select(KeptStanding.rule_id, KeptStanding.dates, _as_read(days.c.flown_on),
                             *[days.c[f"n{i}"] for i in range(len(rules))])
                      .select_from(KeptStanding).outerjoin(days, true())
                      .where(KeptStanding.pilot_id == bindparam("pilot_id")))
-        if len(_WITH_SORTIE_DAYS) > 64:
-            _WITH_SORTIE_DAYS.clear()
-        _WITH_SORTIE_DAYS[key] = statement
-    _LAST_RULES[0] = (rules, statement)
+        _LAST_RULES[0] = (rules, statement)
     return statement
 
 
